@@ -1,0 +1,26 @@
+import type { Metadata } from "next";
+import { redirect } from "next/navigation";
+import { getCurrentUser } from "@/lib/auth/session";
+import { SignInForm } from "./sign-in-form";
+
+export const metadata: Metadata = { title: "Sign in" };
+
+export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string | string[] }> }) {
+  if (await getCurrentUser()) redirect("/");
+  const raw = (await searchParams).next;
+  const next = typeof raw === "string" && raw.startsWith("/") && !raw.startsWith("//") ? raw : "/";
+  return (
+    <main className="mx-auto flex min-h-dvh max-w-md flex-col justify-center px-6 py-12">
+      <div className="mb-8">
+        <p className="text-3xl font-bold tracking-tight">
+          Cycle<span className="text-brand">gate</span>
+        </p>
+        <p className="mt-2 text-ink-soft">Program vault and pre-run checks for the shop floor.</p>
+      </div>
+      <section className="rounded-lg border border-rule bg-panel p-6 shadow-sm">
+        <h1 className="mb-4 text-xl font-semibold">Sign in</h1>
+        <SignInForm next={next} />
+      </section>
+    </main>
+  );
+}

@@ -1,0 +1,14 @@
+import { NextResponse } from "next/server";
+import { sql } from "drizzle-orm";
+import { db } from "@/db";
+
+export const dynamic = "force-dynamic";
+
+export async function GET() {
+  try {
+    await db().execute(sql`select 1`);
+    return NextResponse.json({ ok: true, db: "up" });
+  } catch {
+    return NextResponse.json({ ok: false, db: "down" }, { status: 503 });
+  }
+}

@@ -1,0 +1,16 @@
+import type { NextConfig } from "next";
+
+const nextConfig: NextConfig = {
+  serverExternalPackages: ["pg", "@node-rs/argon2"],
+  poweredByHeader: false,
+  turbopack: {
+    resolveAlias: {
+      fs: { browser: "./lib/empty-module.js" },
+    },
+  },
+  experimental: {
+    serverActions: { bodySizeLimit: "1mb" },
+  },
+};
+
+export default nextConfig;
