@@ -81,22 +81,37 @@ export const machineSchema = z
     safeZ: finite("Safe Z"),
     workOffsetCount: z.coerce
       .number({ error: "Enter a whole number." })
-      .int("Enter a whole number.")
-      .min(1, "At least 1.")
-      .max(300, "At most 300."),
+      // A refine, not .int(): zod's integer check aborts the object and would hide the cross-field errors.
+      .refine(Number.isInteger, "Enter a whole number.")
+      .refine((n) => n >= 1, "At least 1.")
+      .refine((n) => n <= 300, "At most 300."),
   })
-  .superRefine((m, ctx) => {
-    for (const axis of ["X", "Y", "Z"] as const) {
-      const min = m[`travel${axis}Min`];
-      const max = m[`travel${axis}Max`];
-      if (!(min < max)) {
-        ctx.addIssue({ code: "custom", path: [`travel${axis}Max`], message: `${axis} max must be above ${axis} min.` });
-      }
-    }
-    if (m.maxFeed > m.rapidRate) {
-      ctx.addIssue({ code: "custom", path: ["maxFeed"], message: "Max cutting feed cannot exceed the rapid rate." });
-    }
+  // Each cross-field check runs as soon as its own fields parsed, so one submit shows every error.
+  .refine((m) => m.travelXMin < m.travelXMax, {
+    path: ["travelXMax"],
+    message: "X max must be above X min.",
+    when: (p) => bothNumbers(p.value, "travelXMin", "travelXMax"),
+  })
+  .refine((m) => m.travelYMin < m.travelYMax, {
+    path: ["travelYMax"],
+    message: "Y max must be above Y min.",
+    when: (p) => bothNumbers(p.value, "travelYMin", "travelYMax"),
+  })
+  .refine((m) => m.travelZMin < m.travelZMax, {
+    path: ["travelZMax"],
+    message: "Z max must be above Z min.",
+    when: (p) => bothNumbers(p.value, "travelZMin", "travelZMax"),
+  })
+  .refine((m) => m.maxFeed <= m.rapidRate, {
+    path: ["maxFeed"],
+    message: "Max cutting feed cannot exceed the rapid rate.",
+    when: (p) => bothNumbers(p.value, "maxFeed", "rapidRate") && Number((p.value as { rapidRate?: unknown }).rapidRate) > 0,
   });
+
+function bothNumbers(value: unknown, a: string, b: string): boolean {
+  const v = value as Record<string, unknown>;
+  return [v[a], v[b]].every((x) => x !== undefined && x !== null && x !== "" && Number.isFinite(Number(x)));
+}
 
 export type MachineInput = z.infer<typeof machineSchema>;
 

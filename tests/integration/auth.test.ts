@@ -1,0 +1,206 @@
+import { sql } from "drizzle-orm";
+import { beforeEach, describe, expect, it } from "vitest";
+import { db } from "@/db";
+import { auditEvents, sessions } from "@/db/schema";
+import * as sessionRoute from "@/app/api/session/route";
+import * as userRoute from "@/app/api/users/[id]/route";
+import * as accountActions from "@/app/(app)/account/actions";
+import { initialFormState } from "@/lib/form-state";
+import { loadEnv } from "@/lib/env";
+import { ABSOLUTE_LIFETIME_SECONDS, cookieOptions, getCurrentUser, IDLE_TIMEOUT_SECONDS, SESSION_COOKIE } from "@/lib/auth/session";
+import { ACCOUNT_FAILURES } from "@/lib/auth/throttle";
+import { signIn } from "@/lib/auth/sign-in";
+import { actAs, actionStatus, formData, jsonRequest, makeUser, params } from "./helpers";
+import { requestContext } from "./request-context";
+
+const whoAmI = async () => (await sessionRoute.GET(jsonRequest("GET"), undefined)).status;
+
+beforeEach(() => requestContext.reset());
+
+describe("session cookie", () => {
+  it("is httpOnly, SameSite=Lax, path /, with the absolute lifetime, and sealed (nothing readable inside)", async () => {
+    const u = await makeUser("operator");
+    const res = await signIn(u.email, u.password);
+    expect(res.ok).toBe(true);
+    const c = requestContext.jar.get(SESSION_COOKIE);
+    expect(c).toBeDefined();
+    expect(c!.options).toMatchObject({ httpOnly: true, sameSite: "lax", path: "/", maxAge: ABSOLUTE_LIFETIME_SECONDS });
+    expect(c!.value).not.toContain(u.email);
+    expect(c!.value).not.toMatch(/uid|sid/);
+    expect(c!.value.startsWith("Fe26.2*")).toBe(true); // iron's seal format
+  });
+
+  it("is Secure unless the app is plain http on localhost or COOKIE_SECURE=false", () => {
+    const base = { SESSION_SECRET: "s".repeat(32) };
+    expect(loadEnv({ ...base, APP_URL: "https://shop.example.test" }).cookieSecure).toBe(true);
+    expect(loadEnv({ ...base, APP_URL: "http://localhost:3000" }).cookieSecure).toBe(false);
+    expect(loadEnv({ ...base, APP_URL: "http://cnc-floor.example.test" }).cookieSecure).toBe(true);
+    expect(loadEnv({ ...base, APP_URL: "https://shop.example.test", COOKIE_SECURE: "false" }).cookieSecure).toBe(false);
+    expect(cookieOptions().secure).toBe(false); // npm test serves plain http on localhost
+  });
+
+  it("has a 12-hour idle timeout: a session idle longer is refused", async () => {
+    expect(IDLE_TIMEOUT_SECONDS).toBe(12 * 3600);
+    await actAs("operator");
+    expect(await whoAmI()).toBe(200);
+    const user = await getCurrentUser();
+    await db()
+      .update(sessions)
+      .set({ lastSeenAt: sql`now() - interval '12 hours 1 minute'` })
+      .where(sql`${sessions.id} = ${user!.sessionId}`);
+    expect(await whoAmI()).toBe(401);
+  });
+
+  it("is refused past its absolute lifetime even when active", async () => {
+    await actAs("operator");
+    const user = await getCurrentUser();
+    await db().update(sessions).set({ expiresAt: sql`now() - interval '1 second'` }).where(sql`${sessions.id} = ${user!.sessionId}`);
+    expect(await whoAmI()).toBe(401);
+  });
+
+  it("a tampered cookie is refused", async () => {
+    await actAs("operator");
+    const c = requestContext.jar.get(SESSION_COOKIE)!;
+    requestContext.jar.set(SESSION_COOKIE, { ...c, value: c.value.slice(0, -4) + "AAAA" });
+    expect(await whoAmI()).toBe(401);
+  });
+});
+
+describe("old cookies stop working", () => {
+  it("a cookie kept from before sign-out is refused", async () => {
+    await actAs("programmer");
+    const kept = requestContext.snapshot();
+    expect((await sessionRoute.DELETE(jsonRequest("DELETE"), undefined)).status).toBe(200);
+    expect(requestContext.jar.has(SESSION_COOKIE)).toBe(false);
+    requestContext.restore(kept);
+    expect(await whoAmI()).toBe(401);
+  });
+
+  it("a cookie kept from before a password change is refused, on every device", async () => {
+    const me = await actAs("operator");
+    const otherDevice = requestContext.snapshot();
+    const status = await actionStatus(() =>
+      accountActions.changePasswordAction(
+        initialFormState,
+        formData({ currentPassword: me!.password, newPassword: "fresh-password-123", confirmPassword: "fresh-password-123" }),
+      ),
+    );
+    expect(status).toBe(200);
+    requestContext.restore(otherDevice);
+    expect(await whoAmI()).toBe(401);
+    requestContext.reset();
+    expect((await signIn(me!.email, me!.password)).ok).toBe(false);
+    expect((await signIn(me!.email, "fresh-password-123")).ok).toBe(true);
+  });
+
+  it("a cookie of a user an admin disabled is refused, and they cannot sign in", async () => {
+    const victim = await actAs("operator");
+    const victimJar = requestContext.snapshot();
+    expect(await whoAmI()).toBe(200);
+    await actAs("admin");
+    const res = await userRoute.PATCH(jsonRequest("PATCH", { disabled: true }), params({ id: String(victim!.id) }));
+    expect(res.status).toBe(200);
+    requestContext.restore(victimJar);
+    expect(await whoAmI()).toBe(401);
+    const again = await signIn(victim!.email, victim!.password);
+    expect(again).toMatchObject({ ok: false, status: 401 });
+  });
+
+  it("a role change ends the user's sessions (the old cookie carried the old role)", async () => {
+    const victim = await actAs("operator");
+    const jar = requestContext.snapshot();
+    await actAs("admin");
+    await userRoute.PATCH(jsonRequest("PATCH", { role: "lead" }), params({ id: String(victim!.id) }));
+    requestContext.restore(jar);
+    expect(await whoAmI()).toBe(401);
+  });
+});
+
+describe("sign-in", () => {
+  it("POST /api/session answers 200 with the user, GET returns them, DELETE signs out", async () => {
+    const u = await makeUser("lead");
+    const res = await sessionRoute.POST(jsonRequest("POST", { email: u.email.toUpperCase(), password: u.password }), undefined);
+    expect(res.status).toBe(200);
+    expect(await res.json()).toEqual({ user: { email: u.email, name: "Test lead", role: "lead" } });
+    const me = await sessionRoute.GET(jsonRequest("GET"), undefined);
+    expect(await me.json()).toEqual({ user: { email: u.email, name: "Test lead", role: "lead" } });
+  });
+
+  it("an unknown e-mail answers exactly like a wrong password", async () => {
+    const u = await makeUser("operator");
+    const wrong = await sessionRoute.POST(jsonRequest("POST", { email: u.email, password: "not-it-at-all" }), undefined);
+    const unknown = await sessionRoute.POST(jsonRequest("POST", { email: "nobody-here@it.cyclegate.test", password: "not-it-at-all" }), undefined);
+    expect(wrong.status).toBe(401);
+    expect(unknown.status).toBe(401);
+    expect(await unknown.json()).toEqual(await wrong.json());
+  });
+
+  it("bad bodies get 415, 400 and 422 JSON, never a stack trace", async () => {
+    const text = await sessionRoute.POST(new Request("http://localhost/api/session", { method: "POST", body: "x" }), undefined);
+    expect(text.status).toBe(415);
+    const broken = await sessionRoute.POST(
+      new Request("http://localhost/api/session", { method: "POST", headers: { "content-type": "application/json" }, body: "{" }),
+      undefined,
+    );
+    expect(broken.status).toBe(400);
+    const shape = await sessionRoute.POST(jsonRequest("POST", { email: 3 }), undefined);
+    expect(shape.status).toBe(422);
+    const body = (await shape.json()) as { error: string; issues: { fieldErrors: Record<string, string[]> } };
+    expect(Object.keys(body.issues.fieldErrors).sort()).toEqual(["email", "password"]);
+    expect(JSON.stringify(body)).not.toMatch(/at .*\.ts:\d+/);
+  });
+
+  it("throttles an account after 5 failures in 15 minutes with 429, even for the right password, and the delay grows", async () => {
+    const u = await makeUser("operator");
+    for (let i = 0; i < ACCOUNT_FAILURES; i++) {
+      requestContext.reset(`10.1.${i}.1`); // different addresses: the account limit alone must trip
+      const r = await sessionRoute.POST(jsonRequest("POST", { email: u.email, password: `wrong-${i}` }), undefined);
+      expect(r.status).toBe(401);
+    }
+    const blocked = await sessionRoute.POST(jsonRequest("POST", { email: u.email, password: u.password }), undefined);
+    expect(blocked.status).toBe(429);
+    const first = Number(blocked.headers.get("retry-after"));
+    expect(first).toBeGreaterThan(0);
+
+    // Let the first block lapse, fail five more times: the second block is longer.
+    await db().execute(sql`update rate_limits set expire = 1 where key = ${"signin-account:" + u.email}`);
+    for (let i = 0; i < ACCOUNT_FAILURES; i++) {
+      requestContext.reset(`10.2.${i}.1`);
+      expect((await sessionRoute.POST(jsonRequest("POST", { email: u.email, password: `again-${i}` }), undefined)).status).toBe(401);
+    }
+    const second = await sessionRoute.POST(jsonRequest("POST", { email: u.email, password: u.password }), undefined);
+    expect(second.status).toBe(429);
+    expect(Number(second.headers.get("retry-after"))).toBeGreaterThan(first);
+
+    const events = await db()
+      .select({ action: auditEvents.action })
+      .from(auditEvents)
+      .where(sql`${auditEvents.details}->>'email' = ${u.email}`);
+    const actions = events.map((e) => e.action);
+    expect(actions.filter((a) => a === "session.sign-in-failed")).toHaveLength(2 * ACCOUNT_FAILURES);
+    expect(actions.filter((a) => a === "session.sign-in-throttled")).toHaveLength(2);
+  });
+
+  it("throttles one address that tries many accounts", async () => {
+    const { IP_FAILURES } = await import("@/lib/auth/throttle");
+    requestContext.reset("10.250.250.250");
+    let last = 0;
+    for (let i = 0; i <= IP_FAILURES; i++) {
+      last = (await sessionRoute.POST(jsonRequest("POST", { email: `spray-${i}@it.cyclegate.test`, password: "guess" }), undefined)).status;
+    }
+    expect(last).toBe(429);
+  });
+
+  it("sign-ins and sign-outs are audited with the address", async () => {
+    requestContext.reset("10.77.0.5");
+    const u = await makeUser("operator");
+    await signIn(u.email, u.password);
+    await sessionRoute.DELETE(jsonRequest("DELETE"), undefined);
+    const rows = await db()
+      .select({ action: auditEvents.action, ip: auditEvents.ip })
+      .from(auditEvents)
+      .where(sql`${auditEvents.actorId} = ${u.id}`);
+    expect(rows.map((r) => r.action).sort()).toEqual(["session.sign-in", "session.sign-out"]);
+    expect(rows.every((r) => r.ip === "10.77.0.5")).toBe(true);
+  });
+});

@@ -1,0 +1,212 @@
+import { readdirSync, readFileSync, statSync } from "node:fs";
+import path from "node:path";
+import { beforeAll, describe, expect, it } from "vitest";
+import type { Role } from "@/db/schema";
+import * as sessionRoute from "@/app/api/session/route";
+import * as healthRoute from "@/app/api/health/route";
+import * as machinesRoute from "@/app/api/machines/route";
+import * as machineRoute from "@/app/api/machines/[id]/route";
+import * as usersRoute from "@/app/api/users/route";
+import * as userRoute from "@/app/api/users/[id]/route";
+import * as auditRoute from "@/app/api/audit/route";
+import * as signInActions from "@/app/(auth)/sign-in/actions";
+import * as shellActions from "@/app/(app)/actions";
+import * as machineActions from "@/app/(app)/admin/machines/actions";
+import * as userActions from "@/app/(app)/admin/users/actions";
+import * as accountActions from "@/app/(app)/account/actions";
+import { initialFormState } from "@/lib/form-state";
+import { actAs, actionStatus, formData, jsonRequest, machineFields, makeUser, params, TEST_PASSWORD } from "./helpers";
+
+type Caller = Role | "anonymous";
+const CALLERS: Caller[] = ["anonymous", "operator", "programmer", "lead", "admin"];
+
+/** Expected status per caller, in CALLERS order. */
+type Row = [number, number, number, number, number];
+const SIGNED_IN: Row = [401, 200, 200, 200, 200];
+const ADMIN_ONLY: Row = [401, 403, 403, 403, 200];
+const LEAD_AND_ADMIN: Row = [401, 403, 403, 200, 200];
+const PUBLIC: Row = [200, 200, 200, 200, 200];
+
+interface Ctx {
+  machineId: number;
+  targetUserId: number;
+  me: { email: string; password: string } | null;
+}
+
+interface Case {
+  /** "GET /api/x" for route handlers, "action file#name" for server actions. */
+  name: string;
+  expect: Row;
+  run: (ctx: Ctx) => Promise<number>;
+}
+
+const http = (res: Promise<Response>) => res.then((r) => (r.status >= 200 && r.status < 300 ? 200 : r.status));
+
+/** Every route handler and server action of the app, against every caller. */
+const CASES: Case[] = [
+  { name: "GET /api/health", expect: PUBLIC, run: () => http(healthRoute.GET()) },
+  { name: "GET /api/session", expect: SIGNED_IN, run: () => http(sessionRoute.GET(jsonRequest("GET"), undefined)) },
+  {
+    name: "POST /api/session",
+    expect: PUBLIC, // sign-in itself: everyone may try; a fresh account's right password answers 200
+    run: async () => {
+      const u = await makeUser("operator");
+      return http(sessionRoute.POST(jsonRequest("POST", { email: u.email, password: u.password }), undefined));
+    },
+  },
+  { name: "DELETE /api/session", expect: SIGNED_IN, run: () => http(sessionRoute.DELETE(jsonRequest("DELETE"), undefined)) },
+  { name: "GET /api/machines", expect: SIGNED_IN, run: () => http(machinesRoute.GET(jsonRequest("GET"), undefined)) },
+  {
+    name: "POST /api/machines",
+    expect: ADMIN_ONLY,
+    run: () => http(machinesRoute.POST(jsonRequest("POST", machineFields()), undefined)),
+  },
+  {
+    name: "GET /api/machines/[id]",
+    expect: SIGNED_IN,
+    run: (c) => http(machineRoute.GET(jsonRequest("GET"), params({ id: String(c.machineId) }))),
+  },
+  {
+    name: "PUT /api/machines/[id]",
+    expect: ADMIN_ONLY,
+    run: (c) => http(machineRoute.PUT(jsonRequest("PUT", machineFields()), params({ id: String(c.machineId) }))),
+  },
+  { name: "GET /api/users", expect: ADMIN_ONLY, run: () => http(usersRoute.GET(jsonRequest("GET"), undefined)) },
+  {
+    name: "POST /api/users",
+    expect: ADMIN_ONLY,
+    run: () =>
+      http(
+        usersRoute.POST(
+          jsonRequest("POST", { email: `new-${Math.random().toString(36).slice(2)}@it.cyclegate.test`, displayName: "New", role: "operator", password: "a-long-enough-password" }),
+          undefined,
+        ),
+      ),
+  },
+  {
+    name: "GET /api/users/[id]",
+    expect: ADMIN_ONLY,
+    run: (c) => http(userRoute.GET(jsonRequest("GET"), params({ id: String(c.targetUserId) }))),
+  },
+  {
+    name: "PATCH /api/users/[id]",
+    expect: ADMIN_ONLY,
+    run: (c) => http(userRoute.PATCH(jsonRequest("PATCH", { displayName: "Renamed target" }), params({ id: String(c.targetUserId) }))),
+  },
+  { name: "GET /api/audit", expect: LEAD_AND_ADMIN, run: () => http(auditRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/audit?page=1"), undefined)) },
+
+  {
+    name: "action sign-in#signInAction",
+    expect: PUBLIC,
+    run: async () => {
+      const u = await makeUser("operator");
+      return actionStatus(() => signInActions.signInAction(initialFormState, formData({ email: u.email, password: u.password })));
+    },
+  },
+  { name: "action shell#signOutAction", expect: PUBLIC, run: () => actionStatus(() => shellActions.signOutAction()) },
+  {
+    name: "action machines#createMachineAction",
+    expect: ADMIN_ONLY,
+    run: () => actionStatus(() => machineActions.createMachineAction(initialFormState, formData(machineFields()))),
+  },
+  {
+    name: "action machines#updateMachineAction",
+    expect: ADMIN_ONLY,
+    run: (c) => actionStatus(() => machineActions.updateMachineAction(c.machineId, initialFormState, formData(machineFields()))),
+  },
+  {
+    name: "action users#createUserAction",
+    expect: ADMIN_ONLY,
+    run: () =>
+      actionStatus(() =>
+        userActions.createUserAction(
+          initialFormState,
+          formData({ email: `f-${Math.random().toString(36).slice(2)}@it.cyclegate.test`, displayName: "Form user", role: "programmer", password: "a-long-enough-password" }),
+        ),
+      ),
+  },
+  {
+    name: "action users#updateUserAction",
+    expect: ADMIN_ONLY,
+    run: (c) => actionStatus(() => userActions.updateUserAction(c.targetUserId, initialFormState, formData({ displayName: "Target", role: "operator" }))),
+  },
+  {
+    name: "action users#setUserDisabledAction",
+    expect: ADMIN_ONLY,
+    run: (c) => actionStatus(() => userActions.setUserDisabledAction(c.targetUserId, initialFormState, formData({ disabled: "false" }))),
+  },
+  {
+    name: "action users#resetPasswordAction",
+    expect: ADMIN_ONLY,
+    run: (c) =>
+      actionStatus(() =>
+        userActions.resetPasswordAction(c.targetUserId, initialFormState, formData({ password: "another-long-pass", confirmPassword: "another-long-pass" })),
+      ),
+  },
+  {
+    name: "action account#changePasswordAction",
+    expect: SIGNED_IN,
+    run: (c) =>
+      actionStatus(() =>
+        accountActions.changePasswordAction(
+          initialFormState,
+          formData({ currentPassword: c.me?.password ?? TEST_PASSWORD, newPassword: "a-brand-new-password", confirmPassword: "a-brand-new-password" }),
+        ),
+      ),
+  },
+];
+
+let machineId = 0;
+let targetUserId = 0;
+
+beforeAll(async () => {
+  await actAs("admin");
+  const res = await machinesRoute.POST(jsonRequest("POST", machineFields()), undefined);
+  machineId = ((await res.json()) as { machine: { id: number } }).machine.id;
+  targetUserId = (await makeUser("operator")).id;
+});
+
+describe("role matrix: every route handler and server action x every caller", () => {
+  for (const c of CASES) {
+    CALLERS.forEach((caller, i) => {
+      it(`${c.name} as ${caller} -> ${c.expect[i]}`, async () => {
+        const me = await actAs(caller);
+        const status = await c.run({ machineId, targetUserId, me });
+        expect(status).toBe(c.expect[i]);
+      });
+    });
+  }
+});
+
+/** Walks app/ for route handlers' HTTP methods and actions' exported functions. */
+function discover(): string[] {
+  const root = path.resolve(import.meta.dirname, "../../app");
+  const found: string[] = [];
+  const walk = (dir: string) => {
+    for (const entry of readdirSync(dir)) {
+      const full = path.join(dir, entry);
+      if (statSync(full).isDirectory()) walk(full);
+      else if (entry === "route.ts") {
+        const src = readFileSync(full, "utf8");
+        const url = "/" + path.relative(root, path.dirname(full)).split(path.sep).join("/");
+        for (const m of src.matchAll(/export (?:const|async function) (GET|POST|PUT|PATCH|DELETE)\b/g)) found.push(`${m[1]} ${url}`);
+      } else if (entry === "actions.ts") {
+        const src = readFileSync(full, "utf8");
+        for (const m of src.matchAll(/export async function (\w+)/g)) found.push(`${path.relative(root, full)}#${m[1]}`);
+      }
+    }
+  };
+  walk(root);
+  return found;
+}
+
+describe("role matrix coverage", () => {
+  it("has a row for every route handler and server action in app/", () => {
+    const names = CASES.map((c) => c.name);
+    const actionName = (n: string) => n.split("#")[1];
+    const missing = discover().filter((d) =>
+      d.includes("#") ? !names.some((n) => n.startsWith("action ") && actionName(n) === actionName(d)) : !names.includes(d),
+    );
+    expect(missing).toEqual([]);
+  });
+});
