@@ -56,7 +56,7 @@ export function loadEnv(
     throw new Error(`Invalid environment:\n${lines.join("\n")}`);
   }
   const e = parsed.data;
-  const dataDir = path.resolve(e.CYCLEGATE_DATA_DIR ?? path.join(process.cwd(), ".data"));
+  const dataDir = path.resolve(/*turbopackIgnore: true*/ e.CYCLEGATE_DATA_DIR ?? path.join(process.cwd(), ".data"));
   const port = e.PORT ?? 3000;
   const appUrl = e.APP_URL ?? `http://localhost:${port}`;
   const plainLocalHttp = /^http:\/\/(localhost|127\.0\.0\.1)(:|\/|$)/.test(appUrl);
