@@ -1,0 +1,24 @@
+#!/usr/bin/env bash
+# npm run dev: the same bootstrap as npm start, then `next dev` (hot reload) instead of a build.
+set -euo pipefail
+# shellcheck source=scripts/lib.sh
+source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
+cd "$CG_ROOT"
+
+trap 'cg_shutdown; exit 130' INT
+trap 'cg_shutdown; exit 143' TERM
+trap 'status=$?; cg_shutdown; exit "$status"' EXIT
+
+t0="$(cg_now_ms)"
+cg_env_defaults
+cg_bootstrap
+cg_start_mail
+cg_start_app dev
+cg_wait_http "$(cg_local_url)/api/health" "$CG_APP_PID" 120
+cg_log "ready in $(cg_since "$t0")"
+cg_banner
+
+status=0
+wait -n "$CG_APP_PID" "$CG_MAIL_PID" || status=$?
+cg_log "the app or the mail server stopped on its own (status $status); shutting down"
+exit "$status"

@@ -1,0 +1,85 @@
+/**
+ * Shared pieces of the browser tests: Debian's chromium driven by playwright-core, pointed at the
+ * app that `npm test` started (BASE_URL, default http://localhost:3100).
+ */
+import { existsSync } from "node:fs";
+import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+
+/**
+ * Where the app under test listens. Vitest overwrites process.env.BASE_URL with Vite's base path ("/"),
+ * so test.sh also exports CYCLEGATE_BASE_URL, which is read first.
+ */
+export const BASE_URL = pickBaseUrl(process.env.CYCLEGATE_BASE_URL, process.env.BASE_URL);
+
+function pickBaseUrl(...candidates: Array<string | undefined>): string {
+  const url = candidates.find((c) => c !== undefined && /^https?:\/\//.test(c)) ?? "http://localhost:3100";
+  return url.replace(/\/$/, "");
+}
+
+/** An absolute URL on the app. */
+export function appUrl(path: string): string {
+  return new URL(path, `${BASE_URL}/`).href;
+}
+
+/** The password every demo user is seeded with. */
+export const DEMO_PASSWORD = process.env.CYCLEGATE_DEMO_PASSWORD || "cyclegate-demo";
+
+export type Role = "admin" | "lead" | "programmer" | "operator";
+
+/** One seeded user per role. */
+export const DEMO_USERS: ReadonlyArray<{ email: string; role: Role }> = [
+  { email: "admin@cyclegate.test", role: "admin" },
+  { email: "lead@cyclegate.test", role: "lead" },
+  { email: "programmer@cyclegate.test", role: "programmer" },
+  { email: "operator@cyclegate.test", role: "operator" },
+];
+
+/** The binary itself skips the /usr/bin/chromium wrapper script and its harmless shell warning. */
+export function chromiumPath(): string {
+  if (existsSync("/usr/lib/chromium/chromium")) return "/usr/lib/chromium/chromium";
+  if (existsSync("/usr/bin/chromium")) return "/usr/bin/chromium";
+  throw new Error("Debian's chromium is missing: apt-get install -y chromium (npm test installs it)");
+}
+
+/** Launches headless chromium with a fresh profile and no background network traffic. */
+export function launchBrowser(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: chromiumPath(),
+    args: [
+      "--headless",
+      "--no-sandbox",
+      "--disable-gpu",
+      "--disable-quic",
+      "--no-first-run",
+      "--disable-background-networking",
+      "--disable-component-update",
+      "--disable-sync",
+      "--enable-unsafe-swiftshader",
+    ],
+  });
+}
+
+/** A context of its own, so cookies never carry over from one test to the next. */
+export function newContext(browser: Browser): Promise<BrowserContext> {
+  return browser.newContext({ viewport: { width: 1280, height: 800 } });
+}
+
+/** Alert regions of the page itself; Next's route announcer also has role="alert". */
+export function pageAlerts(page: Page) {
+  return page.locator('[role="alert"]:not(#__next-route-announcer__)');
+}
+
+/** Fills the real sign-in form and submits it; does not wait for the outcome. */
+export async function submitSignIn(page: Page, email: string, password: string): Promise<void> {
+  await page.goto(appUrl("/sign-in"));
+  await page.getByLabel("Email", { exact: true }).fill(email);
+  await page.getByLabel("Password", { exact: true }).fill(password);
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
+}
+
+/** Signs in through the page and waits for the redirect to "/" and the header's current user. */
+export async function signIn(page: Page, email: string, password: string = DEMO_PASSWORD): Promise<void> {
+  await submitSignIn(page, email, password);
+  await page.waitForURL((url) => url.pathname === "/", { timeout: 30_000 });
+  await page.getByTestId("current-user").waitFor({ state: "visible" });
+}
