@@ -20,6 +20,7 @@ const envSchema = z.object({
   CYCLEGATE_DATA_DIR: optional(z.string().min(1)),
   CYCLEGATE_DEMO_PASSWORD: optional(z.string().min(8)),
   MAIL_DIR: optional(z.string().min(1)),
+  TRUST_PROXY: optional(boolish),
 });
 
 export type Env = {
@@ -34,6 +35,8 @@ export type Env = {
   dataDir: string;
   demoPassword: string;
   mailDir: string;
+  /** Keep X-Forwarded-* from the client: only behind a reverse proxy that sets them. */
+  trustProxy: boolean;
 };
 
 function readSecretFile(dataDir: string): string | undefined {
@@ -79,6 +82,7 @@ export function loadEnv(
     dataDir,
     demoPassword: e.CYCLEGATE_DEMO_PASSWORD ?? "cyclegate-demo",
     mailDir: e.MAIL_DIR ?? path.join(dataDir, "mail"),
+    trustProxy: e.TRUST_PROXY ?? false,
   };
 }
 

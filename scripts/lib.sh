@@ -181,14 +181,17 @@ cg_stop_pid() {
   cg_log "stopped $name in $(cg_since "$t0")"
 }
 
-# Starts `next start` or `next dev` in the background; sets CG_APP_PID.
+# Starts the app (built, or `next dev` with mode dev) in the background; sets CG_APP_PID.
 cg_start_app() {
   local mode="$1"
   if cg_port_busy "$PORT"; then
     cg_log "port $PORT is in use: stop what listens there or set PORT"
     return 1
   fi
-  (cd "$CG_ROOT" && exec "$CG_BIN/next" "$mode" -p "$PORT" -H "$CYCLEGATE_HOST") &
+  # scripts/serve.ts wraps next so that client-sent forwarding headers cannot forge the caller's address.
+  local flag="" node_env=production
+  [ "$mode" = "dev" ] && flag="--dev" && node_env=development
+  (cd "$CG_ROOT" && NODE_ENV="$node_env" exec node --import tsx scripts/serve.ts $flag) &
   CG_APP_PID=$!
 }
 

@@ -67,4 +67,18 @@ describe("JSON API over HTTP", () => {
     const text = await res.text();
     expect(JSON.parse(text)).toEqual({ error: "The body is not valid JSON." });
   });
+
+  it("a forged X-Forwarded-For does not change the address that is throttled and audited", async () => {
+    const email = `forged-${Date.now()}@cyclegate.test`;
+    const res = await post("/api/session", { email, password: "wrong" }, { "x-forwarded-for": "203.0.113.9", "x-real-ip": "203.0.113.9" });
+    expect(res.status).toBe(401);
+    const admin = await post("/api/session", { email: "admin@cyclegate.test", password: DEMO_PASSWORD });
+    const cookie = (admin.headers.get("set-cookie") ?? "").split(";")[0]!;
+    const audit = await fetch(appUrl("/api/audit?action=session.sign-in-failed"), { headers: { cookie } });
+    const { rows } = (await audit.json()) as { rows: { details: { email?: string }; ip: string | null }[] };
+    const mine = rows.find((r) => r.details.email === email);
+    expect(mine).toBeDefined();
+    expect(mine!.ip).not.toBe("203.0.113.9");
+    expect(["127.0.0.1", "::1"]).toContain(mine!.ip);
+  });
 });
