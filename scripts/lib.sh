@@ -38,7 +38,6 @@ cg_env_defaults() {
   export MAIL_DIR="${MAIL_DIR:-$CYCLEGATE_DATA_DIR/mail}"
   export SMTP_URL="${SMTP_URL:-smtp://127.0.0.1:$SMTP_PORT}"
   export APP_URL="${APP_URL:-http://localhost:$PORT}"
-  export COOKIE_SECURE="${COOKIE_SECURE:-false}"
   [ -n "${SESSION_SECRET:-}" ] || export SESSION_SECRET="$(cg_session_secret)"
   [ -n "${CYCLEGATE_DEMO_PASSWORD:-}" ] || unset CYCLEGATE_DEMO_PASSWORD
 }
