@@ -6,6 +6,7 @@ import { and, eq, gt, isNull, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { sessions, users, type Role } from "@/db/schema";
 import { env } from "@/lib/env";
+import { recordEvent } from "@/lib/audit";
 import { AuthError } from "./errors";
 import { can, type Permission } from "./roles";
 
@@ -148,6 +149,9 @@ export async function requireUser(): Promise<CurrentUser> {
 /** The signed-in user holding `permission`, or AuthError 401/403. */
 export async function authorize(permission: Permission): Promise<CurrentUser> {
   const user = await requireUser();
-  if (!can(user.role, permission)) throw new AuthError(403);
+  if (!can(user.role, permission)) {
+    await recordEvent({ actor: user, action: "access.refused", details: { permission, role: user.role }, ip: await requestIp() });
+    throw new AuthError(403);
+  }
   return user;
 }

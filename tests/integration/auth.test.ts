@@ -203,4 +203,15 @@ describe("sign-in", () => {
     expect(rows.map((r) => r.action).sort()).toEqual(["session.sign-in", "session.sign-out"]);
     expect(rows.every((r) => r.ip === "10.77.0.5")).toBe(true);
   });
+
+  it("a refusal for the wrong role is audited with the permission asked for", async () => {
+    const op = await actAs("operator");
+    const { GET } = await import("@/app/api/users/route");
+    expect((await GET(jsonRequest("GET"), undefined)).status).toBe(403);
+    const rows = await db()
+      .select({ action: auditEvents.action, details: auditEvents.details })
+      .from(auditEvents)
+      .where(sql`${auditEvents.actorId} = ${op!.id} and ${auditEvents.action} = 'access.refused'`);
+    expect(rows).toEqual([{ action: "access.refused", details: { permission: "manageUsers", role: "operator" } }]);
+  });
 });
