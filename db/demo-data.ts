@@ -30,7 +30,7 @@ export const DEMO_MACHINES: NewMachine[] = [
     manualToolChange: true,
     spindleProgramControlled: false,
     hMustEqualT: true,
-    safeZ: 5,
+    safeZ: 2,
     workOffsetCount: 6,
   },
   {
@@ -51,7 +51,7 @@ export const DEMO_MACHINES: NewMachine[] = [
     manualToolChange: false,
     spindleProgramControlled: true,
     hMustEqualT: true,
-    safeZ: 10,
+    safeZ: 2,
     workOffsetCount: 54,
   },
 ];
