@@ -1,4 +1,4 @@
-# Shared helpers for the scripts that start Cyclegate (start.sh, dev.sh, test.sh, pg.sh).
+# Shared helpers for the scripts that start Cyclegate (start.sh, test.sh, pg.sh).
 # Source it; it defines functions and a few variables and runs nothing else.
 # Every function returns non-zero on failure by itself: test.sh runs them without set -e, and bash
 # ignores set -e inside a function called from an `if` anyway.

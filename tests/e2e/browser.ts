@@ -4,6 +4,7 @@
  */
 import { existsSync } from "node:fs";
 import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { afterAll, afterEach, beforeAll, beforeEach } from "vitest";
 
 /**
  * Where the app under test listens. Vitest overwrites process.env.BASE_URL with Vite's base path ("/"),
@@ -82,4 +83,30 @@ export async function signIn(page: Page, email: string, password: string = DEMO_
   await submitSignIn(page, email, password);
   await page.waitForURL((url) => url.pathname === "/", { timeout: 30_000 });
   await page.getByTestId("current-user").waitFor({ state: "visible" });
+}
+
+/** What useFreshPage hands each test: one browser per file, a fresh context and page per test. */
+export interface BrowserHolder {
+  browser: Browser;
+  context: BrowserContext;
+  page: Page;
+}
+
+/** Registers the hooks that launch chromium once per file and give every test its own context. */
+export function useFreshPage(): BrowserHolder {
+  const holder = {} as BrowserHolder;
+  beforeAll(async () => {
+    holder.browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await holder.browser?.close();
+  });
+  beforeEach(async () => {
+    holder.context = await newContext(holder.browser);
+    holder.page = await holder.context.newPage();
+  });
+  afterEach(async () => {
+    await holder.context?.close();
+  });
+  return holder;
 }

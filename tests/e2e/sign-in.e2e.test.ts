@@ -1,6 +1,6 @@
-import type { Browser, BrowserContext, Page } from "playwright-core";
-import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from "vitest";
-import { appUrl, DEMO_PASSWORD, DEMO_USERS, launchBrowser, newContext, pageAlerts, signIn, submitSignIn } from "./browser";
+import type { Page } from "playwright-core";
+import { describe, expect, it } from "vitest";
+import { appUrl, DEMO_PASSWORD, DEMO_USERS, pageAlerts, signIn, submitSignIn, useFreshPage } from "./browser";
 
 interface SessionUser {
   email: string;
@@ -17,61 +17,45 @@ async function currentUser(page: Page): Promise<{ status: number; user?: Session
 }
 
 describe("sign-in page", () => {
-  let browser: Browser;
-  let context: BrowserContext;
-  let page: Page;
-
-  beforeAll(async () => {
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-  });
-  beforeEach(async () => {
-    context = await newContext(browser);
-    page = await context.newPage();
-  });
-  afterEach(async () => {
-    await context?.close();
-  });
+  const b = useFreshPage();
 
   it("sends a signed-out visitor of / to the sign-in page", async () => {
-    await page.goto(appUrl("/"));
-    await page.waitForURL((url) => url.pathname === "/sign-in");
-    await expect(page.getByRole("button", { name: "Sign in", exact: true }).isVisible()).resolves.toBe(true);
+    await b.page.goto(appUrl("/"));
+    await b.page.waitForURL((url) => url.pathname === "/sign-in");
+    await expect(b.page.getByRole("button", { name: "Sign in", exact: true }).isVisible()).resolves.toBe(true);
   });
 
   for (const { email, role } of DEMO_USERS) {
     it(`signs in ${email} and shows their name in the header`, async () => {
-      await signIn(page, email);
-      expect(new URL(page.url()).pathname).toBe("/");
+      await signIn(b.page, email);
+      expect(new URL(b.page.url()).pathname).toBe("/");
 
-      const { status, user } = await currentUser(page);
+      const { status, user } = await currentUser(b.page);
       expect(status).toBe(200);
       expect(user?.email).toBe(email);
       expect(user?.role).toBe(role);
       expect(user?.name.trim().length).toBeGreaterThan(0);
-      await expect(page.getByTestId("current-user").innerText()).resolves.toContain(user?.name);
+      await expect(b.page.getByTestId("current-user").innerText()).resolves.toContain(user?.name);
     });
   }
 
   it("refuses a wrong password with an error and stays on the sign-in page", async () => {
-    await submitSignIn(page, "operator@cyclegate.test", `${DEMO_PASSWORD}-wrong`);
-    const alert = pageAlerts(page).filter({ hasText: /\S/ }).first();
+    await submitSignIn(b.page, "operator@cyclegate.test", `${DEMO_PASSWORD}-wrong`);
+    const alert = pageAlerts(b.page).filter({ hasText: /\S/ }).first();
     await alert.waitFor({ state: "visible" });
     expect((await alert.innerText()).trim().length).toBeGreaterThan(0);
-    expect(new URL(page.url()).pathname).toBe("/sign-in");
-    await expect(currentUser(page)).resolves.toEqual({ status: 401 });
+    expect(new URL(b.page.url()).pathname).toBe("/sign-in");
+    await expect(currentUser(b.page)).resolves.toEqual({ status: 401 });
   });
 
   it("signs out from the header and ends the session", async () => {
-    await signIn(page, "programmer@cyclegate.test");
-    await page.getByTestId("current-user").waitFor();
-    await page.getByRole("button", { name: "Sign out", exact: true }).click();
-    await page.waitForURL((url) => url.pathname === "/sign-in");
-    await expect(currentUser(page)).resolves.toEqual({ status: 401 });
+    await signIn(b.page, "programmer@cyclegate.test");
+    await b.page.getByTestId("current-user").waitFor();
+    await b.page.getByRole("button", { name: "Sign out", exact: true }).click();
+    await b.page.waitForURL((url) => url.pathname === "/sign-in");
+    await expect(currentUser(b.page)).resolves.toEqual({ status: 401 });
 
-    await page.goto(appUrl("/"));
-    await page.waitForURL((url) => url.pathname === "/sign-in");
+    await b.page.goto(appUrl("/"));
+    await b.page.waitForURL((url) => url.pathname === "/sign-in");
   });
 });
