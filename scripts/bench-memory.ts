@@ -1,7 +1,9 @@
 /**
  * Child of the benchmark, run with node --expose-gc: reads the program file, then reports the memory the analysis
- * holds (heapUsed + external, which includes arrayBuffers; after gc, result alive) and the peak seen by sampling during the run
- * from a worker thread (process RSS, which the worker can read while the main thread is busy).
+ * holds (heapUsed + external, which includes arrayBuffers; after gc, result alive), the same as RSS growth, and the
+ * peak seen by sampling during the run from a worker thread (process RSS, which the worker can read while the main
+ * thread is busy). RSS is the figure that sees everything: resizable ArrayBuffers (the engine grows the toolpath in
+ * them during the run) are not counted in `external` by this V8, so only RSS shows them while they exist.
  */
 import { readFileSync } from "node:fs";
 import { Worker } from "node:worker_threads";
@@ -51,7 +53,12 @@ async function main(): Promise<void> {
   const afterNoGc = used();
   await settle();
   const after = used();
+  const rssAfter = process.memoryUsage.rss();
   await worker.terminate();
+  const tp = a.toolpath;
+  const arrays = [tp.positions, tp.line, tp.kind, tp.tool, tp.offset];
+  // a resizable buffer would be invisible to heapUsed+external: say so rather than report too little
+  const resizable = arrays.some((x) => (x.buffer as { resizable?: boolean }).resizable === true);
   const lines = a.lineCount;
   process.stdout.write(
     JSON.stringify({
@@ -60,10 +67,10 @@ async function main(): Promise<void> {
       retained: after - before,
       beforeGc: afterNoGc - before,
       peakRssDelta: peakRss - rssBefore,
+      retainedRss: rssAfter - rssBefore,
+      resizable,
       segments: a.toolpath.segmentCount,
-      toolpathBytes:
-        a.toolpath.positions.buffer.byteLength + a.toolpath.line.buffer.byteLength + a.toolpath.kind.buffer.byteLength +
-        a.toolpath.tool.buffer.byteLength + a.toolpath.offset.buffer.byteLength,
+      toolpathBytes: arrays.reduce((s, x) => s + x.buffer.byteLength, 0),
     }) + "\n",
   );
 }

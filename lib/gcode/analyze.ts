@@ -8,6 +8,7 @@ import type {
   Severity,
   TimeBreakdown,
   ToolChange,
+  Toolpath,
   ToolSummary,
   Units,
   WorkOffsetSummary,
@@ -29,6 +30,15 @@ import {
   chordCount,
 } from "./arc";
 import { compareFixtures, classifyToolOrder, type CutRun } from "./parts";
+import { ToolpathColumn } from "./toolpath";
+
+// Imported constants copied into module constants: a bundler or loader may turn each use of an imported binding
+// into a getter call, which the hot loop should not pay.
+const K_RAPID: number = MotionKind.Rapid, K_FEED: number = MotionKind.Feed, K_ARC: number = MotionKind.Arc;
+const K_CYCLE_FEED: number = MotionKind.CycleFeed, K_CYCLE_RAPID: number = MotionKind.CycleRapid;
+const K_MACHINE: number = MotionKind.Machine, K_JUMP: number = MotionKind.Jump;
+const NO_TOOL_IDX: number = NO_TOOL;
+const A_CA = ARC_CA, A_CB = ARC_CB, A_R = ARC_R, A_A0 = ARC_A0, A_SWEEP = ARC_SWEEP, A_REND = ARC_REND;
 
 // ---- letters -------------------------------------------------------------------------------------------------
 const L_A = 0, L_B = 1, L_C = 2, L_D = 3, L_F = 5, L_G = 6, L_H = 7, L_I = 8, L_J = 9, L_K = 10, L_L = 11;
@@ -47,6 +57,9 @@ const F_EXPR = 1, F_KEYWORD = 2, F_BADWORD = 4, F_BADCHAR = 8, F_BLOCKDEL = 16, 
 const F_BADCOMMENT = 64, F_OVERFLOW = 128, F_BADCODE = 256;
 
 const MAX_WORDS = 48;
+// toolpath chunks: small programs stay in a chunk that grows x4; past CHUNK_MAX, full chunks go to the columns
+const CHUNK_MIN = 256;
+const CHUNK_MAX = 16384;
 const NIST_LINE_LENGTH = 256;
 const MAX_CHORDS = 10000;
 
@@ -216,7 +229,7 @@ class Engine {
   spindle = NaN;
   spindleDir = 5;
   selectedT = -1;
-  toolIdx = NO_TOOL; // index into tools (loaded)
+  toolIdx = NO_TOOL_IDX; // index into tools (loaded)
   toolSlot = 0; // accumulator slot: 0 = no tool
   comp = 40;
   compD = NaN;
@@ -298,16 +311,24 @@ class Engine {
   findings: Finding[] = [];
   readonly fCount = new Int32Array(RULE_IDS.length);
   readonly fSev = new Int8Array(RULE_IDS.length);
-  // toolpath
-  tpCap: number;
+  // toolpath: segments and vertices are written into plain chunks; full chunks are appended to the columns
   tpLimit: number;
-  tpN = 0;
-  tpV = 0;
-  tpPos: Float32Array;
-  tpLine: Uint32Array;
-  tpKind: Uint8Array;
-  tpTool: Uint16Array;
-  tpOff: Uint8Array;
+  tpN = 0; // segments
+  tpV = 0; // vertices
+  cN = 0; // segments in the chunk
+  cV = 0; // vertices in the chunk
+  capS: number;
+  capV: number;
+  cPos: Float32Array<ArrayBuffer>;
+  cLine: Uint32Array<ArrayBuffer>;
+  cKind: Uint8Array<ArrayBuffer>;
+  cTool: Uint16Array<ArrayBuffer>;
+  cOff: Uint8Array<ArrayBuffer>;
+  colPos: ToolpathColumn<Float32Array<ArrayBuffer>> | null = null;
+  colLine: ToolpathColumn<Uint32Array<ArrayBuffer>> | null = null;
+  colKind: ToolpathColumn<Uint8Array<ArrayBuffer>> | null = null;
+  colTool: ToolpathColumn<Uint16Array<ArrayBuffer>> | null = null;
+  colOff: ToolpathColumn<Uint8Array<ArrayBuffer>> | null = null;
   lvx = NaN;
   lvy = NaN;
   lvz = NaN;
@@ -328,12 +349,13 @@ class Engine {
     this.wantPath = opt.toolpath !== false;
     this.blockLimit = 2_000_000 + (this.n >>> 1);
     this.tpLimit = 8_000_000 + (this.n >>> 3);
-    this.tpCap = this.wantPath ? Math.max(1024, Math.ceil(this.n / 16)) : 0;
-    this.tpPos = new Float32Array(this.tpCap * 3 + 3);
-    this.tpLine = new Uint32Array(this.tpCap);
-    this.tpKind = new Uint8Array(this.tpCap);
-    this.tpTool = new Uint16Array(this.tpCap);
-    this.tpOff = new Uint8Array(this.tpCap);
+    const cap = this.wantPath ? Math.min(CHUNK_MAX, Math.max(CHUNK_MIN, this.n >>> 4)) : 0;
+    this.capS = this.capV = cap;
+    this.cPos = new Float32Array(cap * 3);
+    this.cLine = new Uint32Array(cap);
+    this.cKind = new Uint8Array(cap);
+    this.cTool = new Uint16Array(cap);
+    this.cOff = new Uint8Array(cap);
   }
 
   // ---- findings ----------------------------------------------------------------------------------------------
@@ -484,19 +506,17 @@ class Engine {
             neg = c === 45;
             p++;
           }
-          let mant = 0;
           let digits = 0;
           let dec = -1;
+          // up to 9 digits in int32 arithmetic (exact, and cheaper than a chain of double multiply-adds)
+          let im = 0;
           while (p < n) {
             c = b[p]!;
             const d = c - 48;
             if (d >= 0 && d <= 9) {
-              if (mant < 1e17) {
-                mant = mant * 10 + d;
-                if (dec >= 0) dec++;
-              } else if (dec < 0) {
-                mant *= 10;
-              }
+              if (digits === 9) break;
+              im = (im * 10 + d) | 0;
+              if (dec >= 0) dec++;
               digits++;
             } else if (c === 46 && dec < 0) {
               dec = 0;
@@ -504,6 +524,28 @@ class Engine {
               break;
             }
             p++;
+          }
+          let mant = im;
+          // more digits: the same in doubles, keeping 17 significant digits and scaling by the rest
+          if (digits === 9) {
+            while (p < n) {
+              c = b[p]!;
+              const d = c - 48;
+              if (d >= 0 && d <= 9) {
+                if (mant < 1e17) {
+                  mant = mant * 10 + d;
+                  if (dec >= 0) dec++;
+                } else if (dec < 0) {
+                  mant *= 10;
+                }
+                digits++;
+              } else if (c === 46 && dec < 0) {
+                dec = 0;
+              } else if (c !== 32 && c !== 9) {
+                break;
+              }
+              p++;
+            }
           }
           const bit = 1 << L;
           if (digits === 0) {
@@ -925,7 +967,7 @@ class Engine {
     let i = this.toolOfNumber.get(t);
     if (i === undefined) {
       i = this.tools.length;
-      if (i >= NO_TOOL - 1) return NO_TOOL;
+      if (i >= NO_TOOL_IDX - 1) return NO_TOOL_IDX;
       this.tools.push({ number: t, firstLine: line, lastLine: line, loads: 0, h: [], d: [], offsets: [] });
       this.toolOfNumber.set(t, i);
       this.tFeedMin.push(Infinity);
@@ -941,7 +983,7 @@ class Engine {
     return i;
   }
   changeTool(line: number): void {
-    const prev = this.toolIdx === NO_TOOL ? null : this.tools[this.toolIdx]!.number;
+    const prev = this.toolIdx === NO_TOOL_IDX ? null : this.tools[this.toolIdx]!.number;
     if (this.selectedT < 0) {
       this.say(R.toolInvalid, "error", line, "M6 with no tool selected (no T word before it)");
     }
@@ -955,8 +997,8 @@ class Engine {
     if (this.selectedT >= 0) {
       const i = this.toolEntry(this.selectedT, line);
       this.toolIdx = i;
-      this.toolSlot = i === NO_TOOL ? 0 : i + 1;
-      if (i !== NO_TOOL) {
+      this.toolSlot = i === NO_TOOL_IDX ? 0 : i + 1;
+      if (i !== NO_TOOL_IDX) {
         const t = this.tools[i]!;
         t.loads++;
         t.lastLine = line;
@@ -1006,7 +1048,7 @@ class Engine {
       const d = this.lv[L_D]!;
       if (d < 0 || d !== Math.floor(d)) this.say(R.compInvalid, "error", line, `D${fmt(d)} is not a valid offset number`);
       this.compD = d;
-      if (this.toolIdx !== NO_TOOL) {
+      if (this.toolIdx !== NO_TOOL_IDX) {
         const arr = this.tools[this.toolIdx]!.d;
         if (!arr.includes(d)) arr.push(d);
       }
@@ -1028,13 +1070,13 @@ class Engine {
         this.say(R.wordInvalid, "error", line, `H${fmt(h)} is not a valid offset number`);
         return;
       }
-    } else if (this.toolIdx !== NO_TOOL && Number.isNaN(h)) {
+    } else if (this.toolIdx !== NO_TOOL_IDX && Number.isNaN(h)) {
       h = this.tools[this.toolIdx]!.number;
     }
     this.lengthMode = len / 10;
     this.lengthH = h;
     this.lengthSinceChange = true;
-    if (this.toolIdx !== NO_TOOL) {
+    if (this.toolIdx !== NO_TOOL_IDX) {
       const t = this.tools[this.toolIdx]!;
       if (!Number.isNaN(h) && !t.h.includes(h)) t.h.push(h);
       if (this.hMustEqualT && h !== t.number) {
@@ -1185,13 +1227,13 @@ class Engine {
     }
     if (motion === 0) {
       this.target(mask);
-      this.linear(line, MotionKind.Rapid);
+      this.linear(line, K_RAPID);
       return;
     }
     if (motion === 10 || motion === 382) {
       this.target(mask);
       this.cutChecks(line, explicit);
-      this.linear(line, MotionKind.Feed);
+      this.linear(line, K_FEED);
       return;
     }
     if (motion === 20 || motion === 30) {
@@ -1212,7 +1254,7 @@ class Engine {
       }
     }
     void explicit;
-    if (this.toolIdx === NO_TOOL && !this.toolSaid) {
+    if (this.toolIdx === NO_TOOL_IDX && !this.toolSaid) {
       this.toolSaid = true;
       this.say(R.toolNotLoaded, "warning", line,
         this.selectedT >= 0 ? `cutting with T${this.selectedT} selected but never loaded by M6` : "cutting with no tool loaded");
@@ -1222,7 +1264,7 @@ class Engine {
       const sev: Severity = this.spindleControlled ? "error" : "warning";
       this.say(R.spindleOffCut, sev, line, this.spindleDir === 5 ? "cutting with the spindle stopped" : "cutting with the spindle at S0");
     }
-    if (this.toolIdx !== NO_TOOL && !this.lengthSinceChange && !this.lengthSaid) {
+    if (this.toolIdx !== NO_TOOL_IDX && !this.lengthSinceChange && !this.lengthSaid) {
       this.lengthSaid = true;
       this.say(R.lengthOffsetMissing, "error", line, `cutting with T${this.tools[this.toolIdx]!.number} with no tool length offset (G43/G44) since the tool change`);
     }
@@ -1235,7 +1277,7 @@ class Engine {
     const tgt = this.tgt;
     const sx = pos[0]!, sy = pos[1]!, sz = pos[2]!;
     const x = tgt[0]!, y = tgt[1]!, z = tgt[2]!;
-    if (kind === MotionKind.Rapid) {
+    if (kind === K_RAPID) {
       // a rapid that moves X/Y while below safe Z, or that ends below it
       const lim = this.safeZ - 1e-9;
       const endsBelow = z < lim;
@@ -1251,10 +1293,12 @@ class Engine {
     const len = Math.sqrt(dx * dx + dy * dy + dz * dz);
     this.mlen = len;
     this.account(line, kind);
-    const cut = kind !== MotionKind.Rapid && kind !== MotionKind.CycleRapid;
+    const cut = kind !== K_RAPID && kind !== K_CYCLE_RAPID;
     if (cut && !this.lastCut) this.cutStart();
     this.lastCut = cut;
-    this.point(tgt, cut);
+    // point(), without its stretch switch: account() has just made the stretch current
+    addBox(this.cB, 0, tgt, cut);
+    if (this.machine !== undefined && this.originSource.size > 0) this.travel(tgt);
     if (len > 0 || sx !== sx || sy !== sy || sz !== sz) this.seg(line, kind, tgt);
     pos[0] = x;
     pos[1] = y;
@@ -1265,17 +1309,49 @@ class Engine {
   mlen = 0;
   accTool = -1;
   accOff = -1;
+  // The current stretch (one tool slot under one offset): a move's sums and bounds go here, and are folded into the
+  // program, tool and offset accumulators when the tool or the offset changes (and at the end), so that a move
+  // updates one set of accumulators instead of three.
+  readonly cS = new Float64Array(SSTRIDE);
+  readonly cB = newBounds(1);
+  curSlot = -1;
+  curOi = -1;
+  /** Index of the current offset, with the stretch accumulators switched to the current tool and offset. */
+  stretch(): number {
+    const oi = this.offIdx < 0 ? this.curOff() : this.offIdx;
+    if (this.toolSlot !== this.curSlot || oi !== this.curOi) this.fold(oi);
+    return oi;
+  }
+  /** Adds the stretch into the program, tool and offset accumulators and starts a new one for slot/offset `oi`. */
+  fold(oi: number): void {
+    const slot = this.curSlot;
+    if (slot >= 0) {
+      const cs = this.cS;
+      const gs = this.gS, ts = this.tS, os = this.oS;
+      const tb = slot * SSTRIDE, ob = this.curOi * SSTRIDE;
+      for (let k = 0; k < SSTRIDE; k++) {
+        const v = cs[k]!;
+        gs[k]! += v;
+        ts[tb + k]! += v;
+        os[ob + k]! += v;
+        cs[k] = 0;
+      }
+      const cb = this.cB;
+      mergeBox(this.gB, 0, cb);
+      mergeBox(this.tB, slot * BSTRIDE, cb);
+      mergeBox(this.oB, this.curOi * BSTRIDE, cb);
+      initBox(cb, 0);
+    }
+    this.curSlot = this.toolSlot;
+    this.curOi = oi;
+  }
   /** Lengths, times and counts of one move of length `mlen`. */
   account(line: number, kind: number): void {
     const len = this.mlen;
     const acc = this.accel;
-    const rapid = kind === MotionKind.Rapid || kind === MotionKind.CycleRapid;
-    const ts = this.tS;
-    const os = this.oS;
-    const gs = this.gS;
-    const tb = this.toolSlot * SSTRIDE;
-    const oi = this.offIdx < 0 ? this.curOff() : this.offIdx;
-    const ob = oi * SSTRIDE;
+    const rapid = kind === K_RAPID || kind === K_CYCLE_RAPID;
+    const oi = this.stretch();
+    const cs = this.cS;
     let t: number;
     let total: number;
     if (rapid) {
@@ -1283,12 +1359,8 @@ class Engine {
       const v = this.rapidRate / 60;
       total = len > 0 ? (len >= (v * v) / acc ? len / v + v / acc : 2 * Math.sqrt(len / acc)) : 0;
       this.rapidLen += len;
-      gs[S_RAPID_LEN]! += len;
-      gs[S_RAPID_S]! += t;
-      ts[tb + S_RAPID_LEN]! += len;
-      ts[tb + S_RAPID_S]! += t;
-      os[ob + S_RAPID_LEN]! += len;
-      os[ob + S_RAPID_S]! += t;
+      cs[S_RAPID_LEN]! += len;
+      cs[S_RAPID_S]! += t;
     } else {
       let v: number; // units/min
       if (this.inverseTime) {
@@ -1303,51 +1375,57 @@ class Engine {
       // trapezoidal profile [KIN]; a triangle when the move is too short to reach the feed
       total = vs > 0 && len > 0 ? (len >= (vs * vs) / acc ? len / vs + vs / acc : 2 * Math.sqrt(len / acc)) : 0;
       this.feedLen += len;
-      gs[S_FEED_LEN]! += len;
-      gs[S_FEED_S]! += t;
-      ts[tb + S_FEED_LEN]! += len;
-      ts[tb + S_FEED_S]! += t;
-      os[ob + S_FEED_LEN]! += len;
-      os[ob + S_FEED_S]! += t;
+      cs[S_FEED_LEN]! += len;
+      cs[S_FEED_S]! += t;
       const ti = this.toolIdx;
-      if (ti !== NO_TOOL) {
-        const fr = this.inverseTime ? this.feedRaw : this.feed;
-        if (fr === fr) {
-          if (fr < this.tFeedMin[ti]!) this.tFeedMin[ti] = fr;
-          if (fr > this.tFeedMax[ti]!) this.tFeedMax[ti] = fr;
-        }
-        const s = this.spindle;
-        if (s === s) {
-          if (s < this.tSpinMin[ti]!) this.tSpinMin[ti] = s;
-          if (s > this.tSpinMax[ti]!) this.tSpinMax[ti] = s;
-        }
-      }
-      if (this.spindle === this.spindle) {
-        if (this.spindle < this.spinMin) this.spinMin = this.spindle;
-        if (this.spindle > this.spinMax) this.spinMax = this.spindle;
-      }
+      const fr = this.inverseTime ? this.feedRaw : this.feed;
+      // the ranges only change when the feed, the speed or the tool does (NaN always takes the long way)
+      if (fr !== this.rangeFeed || this.spindle !== this.rangeSpin || ti !== this.rangeTool) this.cutRanges(ti, fr);
       if (ti !== this.lastRunTool || oi !== this.lastRunOff) this.newRun(ti, oi);
     }
-    gs[S_TOTAL_S]! += total;
-    ts[tb + S_TOTAL_S]! += total;
-    os[ob + S_TOTAL_S]! += total;
+    cs[S_TOTAL_S]! += total;
     // first/last lines; the lists only change when the tool or the offset does
     const o = this.offsets[oi]!;
     o.last = line;
-    if (this.toolIdx !== NO_TOOL) this.tools[this.toolIdx]!.lastLine = line;
+    if (this.toolIdx !== NO_TOOL_IDX) this.tools[this.toolIdx]!.lastLine = line;
     if (this.toolIdx !== this.accTool || oi !== this.accOff) {
       this.accTool = this.toolIdx;
       this.accOff = oi;
       if (o.firstMotion === null) o.firstMotion = line;
-      if (this.toolIdx !== NO_TOOL) {
+      if (this.toolIdx !== NO_TOOL_IDX) {
         const tl = this.tools[this.toolIdx]!;
         if (!tl.offsets.includes(oi)) tl.offsets.push(oi);
         if (!o.tools.includes(tl.number)) o.tools.push(tl.number);
       }
     }
-    if (kind === MotionKind.Rapid) this.counts.rapid++;
-    else if (kind === MotionKind.Feed) this.counts.feed++;
-    else if (kind === MotionKind.Arc) this.counts.arc++;
+    if (kind === K_RAPID) this.counts.rapid++;
+    else if (kind === K_FEED) this.counts.feed++;
+    else if (kind === K_ARC) this.counts.arc++;
+  }
+
+  rangeFeed = NaN;
+  rangeSpin = NaN;
+  rangeTool = -1;
+  /** Feed and spindle ranges while cutting, per tool and for the program. */
+  cutRanges(ti: number, fr: number): void {
+    const s = this.spindle;
+    this.rangeFeed = fr;
+    this.rangeSpin = s;
+    this.rangeTool = ti;
+    if (ti !== NO_TOOL_IDX) {
+      if (fr === fr) {
+        if (fr < this.tFeedMin[ti]!) this.tFeedMin[ti] = fr;
+        if (fr > this.tFeedMax[ti]!) this.tFeedMax[ti] = fr;
+      }
+      if (s === s) {
+        if (s < this.tSpinMin[ti]!) this.tSpinMin[ti] = s;
+        if (s > this.tSpinMax[ti]!) this.tSpinMax[ti] = s;
+      }
+    }
+    if (s === s) {
+      if (s < this.spinMin) this.spinMin = s;
+      if (s > this.spinMax) this.spinMax = s;
+    }
   }
 
   newRun(ti: number, oi: number): void {
@@ -1361,17 +1439,13 @@ class Engine {
   lastCut = false;
   /** The start of a cutting stretch belongs to the cutting bounds (it is already in the overall ones). */
   cutStart(): void {
-    const p = this.pos;
-    addBox(this.gB, 6, p, false);
-    addBox(this.tB, this.toolSlot * BSTRIDE + 6, p, false);
-    addBox(this.oB, (this.offIdx < 0 ? this.curOff() : this.offIdx) * BSTRIDE + 6, p, false);
+    this.stretch();
+    addBox(this.cB, 6, this.pos, false);
   }
   /** Adds an end point (or arc extreme) to the program bounds; NaN axes are skipped by the comparisons. */
   point(p: Float64Array, cut: boolean): void {
-    addBox(this.gB, 0, p, cut);
-    addBox(this.tB, this.toolSlot * BSTRIDE, p, cut);
-    const oi = this.offIdx < 0 ? this.curOff() : this.offIdx;
-    addBox(this.oB, oi * BSTRIDE, p, cut);
+    this.stretch();
+    addBox(this.cB, 0, p, cut);
     if (this.machine !== undefined && this.originSource.size > 0) this.travel(p);
   }
 
@@ -1415,16 +1489,20 @@ class Engine {
       }
       this.vertex(sx, sy, sz);
     } else if (!startKnown || sx !== this.lvx || sy !== this.lvy || sz !== this.lvz) {
-      this.push(line, MotionKind.Jump, startKnown ? pos : e);
+      this.push(line, K_JUMP, startKnown ? pos : e);
       if (!startKnown) return;
     }
     this.push(line, kind, e);
   }
   vertex(x: number, y: number, z: number): void {
-    const v = this.tpV * 3;
-    this.tpPos[v] = x;
-    this.tpPos[v + 1] = y;
-    this.tpPos[v + 2] = z;
+    let v = this.cV;
+    if (v === this.capV) v = this.fullVertexChunk();
+    const o = v * 3;
+    const cp = this.cPos;
+    cp[o] = x;
+    cp[o + 1] = y;
+    cp[o + 2] = z;
+    this.cV = v + 1;
     this.tpV++;
     this.lvx = x;
     this.lvy = y;
@@ -1432,48 +1510,98 @@ class Engine {
   }
   push(line: number, kind: number, e: Float64Array): void {
     const i = this.tpN;
-    if (i >= this.tpCap) {
-      if (i >= this.tpLimit) {
-        this.tpFull = true;
-        this.say(R.toolpathTruncated, "warning", line, `toolpath truncated at ${i} segments`);
-        return;
-      }
-      this.growPath();
+    if (i >= this.tpLimit) {
+      this.tpFull = true;
+      this.say(R.toolpathTruncated, "warning", line, `toolpath truncated at ${i} segments`);
+      return;
     }
-    this.tpLine[i] = line;
-    this.tpKind[i] = kind;
-    this.tpTool[i] = this.toolIdx;
-    this.tpOff[i] = this.offIdx < 0 ? this.curOff() : this.offIdx;
+    let j = this.cN;
+    if (j === this.capS) j = this.fullSegmentChunk();
+    this.cLine[j] = line;
+    this.cKind[j] = kind;
+    this.cTool[j] = this.toolIdx;
+    this.cOff[j] = this.offIdx < 0 ? this.curOff() : this.offIdx;
+    this.cN = j + 1;
     this.tpN = i + 1;
-    const v = this.tpV * 3;
-    const x = e[0]!, y = e[1]!, z = e[2]!;
-    const tp = this.tpPos;
-    tp[v] = x;
-    tp[v + 1] = y;
-    tp[v + 2] = z;
-    this.tpV++;
-    this.lvx = x;
-    this.lvy = y;
-    this.lvz = z;
+    this.vertex(e[0]!, e[1]!, e[2]!);
   }
-  growPath(): void {
-    const cap = Math.min(this.tpLimit, Math.ceil(this.tpCap * 1.5) + 1024);
-    const pos = new Float32Array(cap * 3 + 3);
-    pos.set(this.tpPos);
-    this.tpPos = pos;
-    const ln = new Uint32Array(cap);
-    ln.set(this.tpLine);
-    this.tpLine = ln;
-    const k = new Uint8Array(cap);
-    k.set(this.tpKind);
-    this.tpKind = k;
-    const t = new Uint16Array(cap);
-    t.set(this.tpTool);
-    this.tpTool = t;
-    const o = new Uint8Array(cap);
-    o.set(this.tpOff);
-    this.tpOff = o;
-    this.tpCap = cap;
+  /** Makes room in a full vertex chunk; returns the next free index in it. */
+  fullVertexChunk(): number {
+    if (this.capV < CHUNK_MAX) {
+      this.capV = Math.min(CHUNK_MAX, this.capV * 4);
+      const p = new Float32Array(this.capV * 3);
+      p.set(this.cPos);
+      this.cPos = p;
+      return this.cV;
+    }
+    if (!this.colPos) this.colPos = new ToolpathColumn(Float32Array, (this.tpLimit + 1) * 3);
+    this.colPos.append(this.cPos, this.cV * 3);
+    this.cV = 0;
+    return 0;
+  }
+  /** Makes room in a full segment chunk; returns the next free index in it. */
+  fullSegmentChunk(): number {
+    if (this.capS < CHUNK_MAX) {
+      const cap = (this.capS = Math.min(CHUNK_MAX, this.capS * 4));
+      const ln = new Uint32Array(cap);
+      ln.set(this.cLine);
+      this.cLine = ln;
+      const k = new Uint8Array(cap);
+      k.set(this.cKind);
+      this.cKind = k;
+      const t = new Uint16Array(cap);
+      t.set(this.cTool);
+      this.cTool = t;
+      const o = new Uint8Array(cap);
+      o.set(this.cOff);
+      this.cOff = o;
+      return this.cN;
+    }
+    if (!this.colLine) {
+      const lim = this.tpLimit;
+      this.colLine = new ToolpathColumn(Uint32Array, lim);
+      this.colKind = new ToolpathColumn(Uint8Array, lim);
+      this.colTool = new ToolpathColumn(Uint16Array, lim);
+      this.colOff = new ToolpathColumn(Uint8Array, lim);
+    }
+    this.flushSegments();
+    return 0;
+  }
+  flushSegments(): void {
+    const j = this.cN;
+    this.colLine!.append(this.cLine, j);
+    this.colKind!.append(this.cKind, j);
+    this.colTool!.append(this.cTool, j);
+    this.colOff!.append(this.cOff, j);
+    this.cN = 0;
+  }
+  /** The toolpath arrays at the end of the run, each exactly as long as its data. */
+  takePath(): Pick<Toolpath, "positions" | "line" | "kind" | "tool" | "offset"> {
+    const n = this.tpN;
+    if (n === 0) {
+      // a lone start vertex is not a path: no segments, no vertices
+      return { positions: new Float32Array(0), line: new Uint32Array(0), kind: new Uint8Array(0), tool: new Uint16Array(0), offset: new Uint8Array(0) };
+    }
+    let positions: Float32Array<ArrayBuffer>;
+    if (this.colPos) {
+      this.colPos.append(this.cPos, this.cV * 3);
+      positions = this.colPos.take();
+    } else positions = this.cPos.slice(0, this.cV * 3);
+    this.cPos = new Float32Array(0);
+    if (this.colLine) {
+      this.flushSegments();
+      this.cLine = new Uint32Array(0);
+      this.cKind = new Uint8Array(0);
+      this.cTool = new Uint16Array(0);
+      this.cOff = new Uint8Array(0);
+      const kind = this.colKind!.take();
+      const offset = this.colOff!.take();
+      const tool = this.colTool!.take();
+      const line = this.colLine.take();
+      return { positions, line, kind, tool, offset };
+    }
+    const j = this.cN;
+    return { positions, line: this.cLine.slice(0, j), kind: this.cKind.slice(0, j), tool: this.cTool.slice(0, j), offset: this.cOff.slice(0, j) };
   }
 
   // ---- arcs --------------------------------------------------------------------------------------------------
@@ -1501,7 +1629,7 @@ class Engine {
     if (sa !== sa || sb !== sb || ea !== ea || eb !== eb) {
       this.say(R.arcStartUnknown, "warning", line, "arc from a position that is not known: it is not drawn");
       this.mlen = 0;
-      this.account(line, MotionKind.Arc);
+      this.account(line, K_ARC);
       pos[0] = tgt[0]!;
       pos[1] = tgt[1]!;
       pos[2] = tgt[2]!;
@@ -1537,20 +1665,21 @@ class Engine {
       }
       // [NIST] 3.5.3.2: the end must be as far from the centre as the start
       const tolArc = (this.progInch ? 0.0002 * MM_PER_INCH : 0.002) * (this.units === "inch" ? 1 / MM_PER_INCH : 1);
-      const diff = Math.abs(out[ARC_REND]! - out[ARC_R]!);
+      const diff = Math.abs(out[A_REND]! - out[A_R]!);
       if (diff > tolArc + 1e-12) {
         this.say(R.arcRadiusMismatch, "error", line,
-          `start radius ${fmt(out[ARC_R]! / sc)} and end radius ${fmt(out[ARC_REND]! / sc)} differ by ${fmt(diff / sc)} (more than ${fmt(tolArc / sc)})`);
+          `start radius ${fmt(out[A_R]! / sc)} and end radius ${fmt(out[A_REND]! / sc)} differ by ${fmt(diff / sc)} (more than ${fmt(tolArc / sc)})`);
       }
     }
-    const ca = out[ARC_CA]!, cb = out[ARC_CB]!, r = out[ARC_R]!, a0 = out[ARC_A0]!, sweep = out[ARC_SWEEP]!;
+    const ca = out[A_CA]!, cb = out[A_CB]!, r = out[A_R]!, a0 = out[A_A0]!, sweep = out[A_SWEEP]!;
     const sc0 = pos[ic]!;
     const ec = tgt[ic]!;
     let dc = ec - sc0;
     if (dc !== dc) dc = 0;
-    const length = Math.hypot(r * sweep, dc);
+    const rs = r * sweep;
+    const length = Math.sqrt(rs * rs + dc * dc);
     this.mlen = length;
-    this.account(line, MotionKind.Arc);
+    this.account(line, K_ARC);
     if (!this.lastCut) this.cutStart();
     this.lastCut = true;
     // exact bounds: extremes inside the sweep, then the end point
@@ -1570,7 +1699,7 @@ class Engine {
       let ux = Math.cos(a0), uy = Math.sin(a0);
       for (let k = 1; k <= nChords; k++) {
         if (k === nChords) {
-          this.seg(line, MotionKind.Arc, tgt);
+          this.seg(line, K_ARC, tgt);
         } else {
           const nx = ux * cs - uy * sn;
           uy = ux * sn + uy * cs;
@@ -1578,7 +1707,7 @@ class Engine {
           p3[ia] = ca + r * ux;
           p3[ib] = cb + r * uy;
           p3[ic] = sc0 + (dc * k) / nChords;
-          this.seg(line, MotionKind.Arc, p3);
+          this.seg(line, K_ARC, p3);
         }
         pos[0] = this.lvx;
         pos[1] = this.lvy;
@@ -1664,16 +1793,12 @@ class Engine {
       this.say(R.cycleInvalid, "error", line, "G84 tapping needs the spindle turning clockwise (M3)");
     }
     const clear = this.retractOld ? (oldC > rr ? oldC : rr) : rr;
-    const t = this.tgt;
-    const moveTo = (kind: number, a: number, b: number, c: number): void => {
-      t[ia] = a;
-      t[ib] = b;
-      t[ic] = c;
-      this.linear(line, kind);
-    };
+    this.cycA = ia;
+    this.cycB = ib;
+    this.cycC = ic;
     // preliminary: up to R if below it
     if (oldC < rr || oldC !== oldC) {
-      moveTo(MotionKind.CycleRapid, pos[ia]!, pos[ib]!, rr);
+      this.cycMove(line, K_CYCLE_RAPID, pos[ia]!, pos[ib]!, rr);
     }
     // peck back-off 0.010 in / 0.254 mm ([NIST-SRC])
     const backoff = this.units === "inch" ? 0.01 : 0.254;
@@ -1686,33 +1811,45 @@ class Engine {
         if (m & (1 << la)) a += lv[la]! * sc;
         if (m & (1 << lb)) b += lv[lb]! * sc;
       }
-      moveTo(MotionKind.CycleRapid, a, b, pos[ic]!);
-      if (pos[ic] !== rr) moveTo(MotionKind.CycleRapid, a, b, rr);
+      this.cycMove(line, K_CYCLE_RAPID, a, b, pos[ic]!);
+      if (pos[ic] !== rr) this.cycMove(line, K_CYCLE_RAPID, a, b, rr);
       if (peck) {
         const q = this.cycQ;
         for (let d = rr - q; d > zz; d -= q) {
-          moveTo(MotionKind.CycleFeed, a, b, d);
+          this.cycMove(line, K_CYCLE_FEED, a, b, d);
           if (motion === 830) {
-            moveTo(MotionKind.CycleRapid, a, b, rr);
-            moveTo(MotionKind.CycleRapid, a, b, d + backoff);
+            this.cycMove(line, K_CYCLE_RAPID, a, b, rr);
+            this.cycMove(line, K_CYCLE_RAPID, a, b, d + backoff);
           } else {
-            moveTo(MotionKind.CycleRapid, a, b, d + backoff);
+            this.cycMove(line, K_CYCLE_RAPID, a, b, d + backoff);
           }
         }
-        moveTo(MotionKind.CycleFeed, a, b, zz);
-        moveTo(MotionKind.CycleRapid, a, b, clear);
+        this.cycMove(line, K_CYCLE_FEED, a, b, zz);
+        this.cycMove(line, K_CYCLE_RAPID, a, b, clear);
       } else if (motion === 810 || motion === 820 || motion === 860 || motion === 870 || motion === 880) {
-        moveTo(MotionKind.CycleFeed, a, b, zz);
+        this.cycMove(line, K_CYCLE_FEED, a, b, zz);
         if ((motion === 820 || motion === 860 || motion === 880) && this.cycP > 0) this.addDwell(this.cycP);
-        moveTo(MotionKind.CycleRapid, a, b, clear);
+        this.cycMove(line, K_CYCLE_RAPID, a, b, clear);
       } else {
         // G84 G85 G89: feed in, feed out to R
-        moveTo(MotionKind.CycleFeed, a, b, zz);
+        this.cycMove(line, K_CYCLE_FEED, a, b, zz);
         if (motion === 890 && this.cycP > 0) this.addDwell(this.cycP);
-        moveTo(MotionKind.CycleFeed, a, b, rr);
-        if (clear > rr) moveTo(MotionKind.CycleRapid, a, b, clear);
+        this.cycMove(line, K_CYCLE_FEED, a, b, rr);
+        if (clear > rr) this.cycMove(line, K_CYCLE_RAPID, a, b, clear);
       }
     }
+  }
+
+  cycA = 0;
+  cycB = 1;
+  cycC = 2;
+  /** One cycle leg to (a, b, c) in the cycle's plane axes. */
+  cycMove(line: number, kind: number, a: number, b: number, c: number): void {
+    const t = this.tgt;
+    t[this.cycA] = a;
+    t[this.cycB] = b;
+    t[this.cycC] = c;
+    this.linear(line, kind);
   }
 
   // ---- G28/G30 and G53 -----------------------------------------------------------------------------------------
@@ -1721,7 +1858,7 @@ class Engine {
     if (this.comp !== 40) this.say(R.compInvalid, "error", line, `${second ? "G30" : "G28"} with cutter compensation on`);
     if (mask & B_XYZ) {
       this.target(mask);
-      this.linear(line, MotionKind.Rapid);
+      this.linear(line, K_RAPID);
     }
     // final leg: the named axes (all, when none is named) go to the home position, machine 0
     const all = (mask & B_XYZ) === 0;
@@ -1783,17 +1920,20 @@ class Engine {
         this.machineLen += len;
         const t = (len / this.rapidRate) * 60;
         const total = trapezoidSeconds(len, this.rapidRate / 60, this.accel);
-        const oi = this.curOff();
-        for (const [arr, base] of [[this.gS, 0], [this.tS, this.toolSlot * SSTRIDE], [this.oS, oi * SSTRIDE]] as const) {
-          arr[base + S_RAPID_S]! += t;
-          arr[base + S_TOTAL_S]! += total;
-        }
+        const tb = this.toolSlot * SSTRIDE;
+        const ob = this.curOff() * SSTRIDE;
+        this.gS[S_RAPID_S]! += t;
+        this.gS[S_TOTAL_S]! += total;
+        this.tS[tb + S_RAPID_S]! += t;
+        this.tS[tb + S_TOTAL_S]! += total;
+        this.oS[ob + S_RAPID_S]! += t;
+        this.oS[ob + S_TOTAL_S]! += total;
       }
       const e = this.tgt;
       e[0] = nx;
       e[1] = ny;
       e[2] = nz;
-      this.seg(line, MotionKind.Machine, e);
+      this.seg(line, K_MACHINE, e);
     }
     pos[0] = nx;
     pos[1] = ny;
@@ -1965,6 +2105,7 @@ class Engine {
   // ---- the end -----------------------------------------------------------------------------------------------------
   finish(lines: number): void {
     this.lineCount = lines;
+    this.fold(-1);
     if (this.stack.length > 0) {
       this.say(R.subprogramInvalid, "error", this.stack[this.stack.length - 1]!.callLine, "subprogram ends without M99");
     }
@@ -1981,6 +2122,15 @@ class Engine {
   lineCount = 0;
 }
 
+/** Widens box `o` of `b` (all and cutting halves) by box 0 of `c`. */
+function mergeBox(b: Float64Array, o: number, c: Float64Array): void {
+  for (let k = 0; k < BSTRIDE; k += 6) {
+    for (let i = 0; i < 3; i++) {
+      if (c[k + i]! < b[o + k + i]!) b[o + k + i] = c[k + i]!;
+      if (c[k + i + 3]! > b[o + k + i + 3]!) b[o + k + i + 3] = c[k + i + 3]!;
+    }
+  }
+}
 function addBox(b: Float64Array, o: number, p: Float64Array, cut: boolean): void {
   const x = p[0]!, y = p[1]!, z = p[2]!;
   if (x < b[o]!) b[o] = x;
@@ -2030,16 +2180,7 @@ export function analyzeProgram(source: string | Uint8Array, options: AnalyzeOpti
   const bytes = typeof source === "string" ? new TextEncoder().encode(source) : source;
   const e = new Engine(bytes, options);
   e.run();
-  const tn = e.tpN;
-  const toolpath = {
-    segmentCount: tn,
-    positions: e.tpPos.subarray(0, e.tpV * 3),
-    line: e.tpLine.subarray(0, tn),
-    kind: e.tpKind.subarray(0, tn),
-    tool: e.tpTool.subarray(0, tn),
-    offset: e.tpOff.subarray(0, tn),
-    chordTolerance: e.tol,
-  };
+  const toolpath: Toolpath = { segmentCount: e.tpN, ...e.takePath(), chordTolerance: e.tol };
   // parts: fixture comparison and tool order
   const cutOffsets = new Set<number>();
   for (const r of e.runs) cutOffsets.add(r.offset);

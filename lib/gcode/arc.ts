@@ -32,8 +32,10 @@ export function arcFromCenter(
 ): boolean {
   const ca = sa + ia;
   const cb = sb + ib;
-  const r = Math.hypot(ia, ib);
-  const rEnd = Math.hypot(ea - ca, eb - cb);
+  // Math.sqrt, not Math.hypot: hypot is several times slower in V8 (squares overflow only past 1e154)
+  const r = Math.sqrt(ia * ia + ib * ib);
+  const ea2 = ea - ca, eb2 = eb - cb;
+  const rEnd = Math.sqrt(ea2 * ea2 + eb2 * eb2);
   out[ARC_CA] = ca;
   out[ARC_CB] = cb;
   out[ARC_R] = r;
@@ -60,7 +62,7 @@ export function arcFromRadius(
 ): number {
   const dx = ea - sa;
   const dy = eb - sb;
-  const chord = Math.hypot(dx, dy);
+  const chord = Math.sqrt(dx * dx + dy * dy);
   if (chord === 0) return ARC_SAME_POINT;
   const r = Math.abs(radius);
   const half = chord / 2;
@@ -114,7 +116,8 @@ export function arcExtremes(
 
 /** Arc length; helical when `dc` (travel along the plane normal) is not zero ([NIST-SRC] find_arc_length). */
 export function arcLength(r: number, sweep: number, dc: number): number {
-  return dc === 0 ? r * sweep : Math.hypot(r * sweep, dc);
+  const rs = r * sweep;
+  return dc === 0 ? rs : Math.sqrt(rs * rs + dc * dc);
 }
 
 /** Number of chords so that no chord strays more than `tol` from an arc of radius r over `sweep` radians. */

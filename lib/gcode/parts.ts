@@ -18,47 +18,82 @@ export interface FixtureDifference {
   reason: string;
 }
 
-function isCut(kind: number): boolean {
-  return kind === MotionKind.Feed || kind === MotionKind.Arc || kind === MotionKind.CycleFeed;
+// copied from the import once: a loader may turn each use of an imported binding into a getter call
+const K_FEED: number = MotionKind.Feed, K_ARC: number = MotionKind.Arc, K_CYCLE_FEED: number = MotionKind.CycleFeed;
+
+/**
+ * The next cutting segment of one (tool, offset) pair over its runs, or -1. `st` holds the cursor: [run index,
+ * segment index]. A plain function over typed arrays, so the walk over every segment allocates nothing.
+ */
+function nextCut(
+  kind: Uint8Array, toolOf: Uint16Array, offsetOf: Uint8Array, count: number,
+  runs: CutRun[], tool: number, offset: number, st: Int32Array,
+): number {
+  let r = st[0]!;
+  let i = st[1]!;
+  const nr = runs.length;
+  while (r < nr) {
+    const run = runs[r]!;
+    if (run.tool === tool && run.offset === offset) {
+      if (i < run.startSeg) i = run.startSeg;
+      const end = run.endSeg < 0 ? count : run.endSeg;
+      while (i < end) {
+        const s = i++;
+        const k = kind[s]!;
+        if ((k === K_FEED || k === K_ARC || k === K_CYCLE_FEED) && toolOf[s] === tool && offsetOf[s] === offset) {
+          st[0] = r;
+          st[1] = i;
+          return s;
+        }
+      }
+    }
+    r++;
+  }
+  st[0] = r;
+  st[1] = i;
+  return -1;
 }
 
-/** Iterates the cutting segments of one (tool, offset) pair over its runs. */
-class CutCursor {
-  private r = 0;
-  private i: number;
-  constructor(
-    private readonly tp: Toolpath,
-    private readonly runs: CutRun[],
-    private readonly tool: number,
-    private readonly offset: number,
-  ) {
-    this.i = -1;
-    this.skipToRun();
-  }
-  private skipToRun(): void {
-    while (this.r < this.runs.length) {
-      const run = this.runs[this.r]!;
-      if (run.tool === this.tool && run.offset === this.offset) {
-        if (this.i < run.startSeg) this.i = run.startSeg;
-        return;
-      }
-      this.r++;
+/**
+ * Walks the cutting segments of `tool` under `ref` and under `off` side by side. Returns 0 when they agree, 1 when
+ * the counts differ (res = [moves under ref, moves under off, first extra segment under off or -1, last compared
+ * segment under off or -1]), 2 when a move differs (res = [move number, segment under ref, segment under off]).
+ * Small and allocation-free so that it is optimised quickly; the messages are built by the caller.
+ */
+function walkPair(tp: Toolpath, runs: CutRun[], tool: number, ref: number, off: number, tol: number, res: Int32Array): number {
+  const kind = tp.kind, toolOf = tp.tool, offsetOf = tp.offset, count = tp.segmentCount, pos = tp.positions;
+  const ca0 = new Int32Array(2);
+  const cb0 = new Int32Array(2);
+  let na = 0;
+  let lastB = -1;
+  for (;;) {
+    const sa = nextCut(kind, toolOf, offsetOf, count, runs, tool, ref, ca0);
+    const sb = nextCut(kind, toolOf, offsetOf, count, runs, tool, off, cb0);
+    if (sa < 0 && sb < 0) return 0;
+    if (sa < 0 || sb < 0) {
+      let ca = na + (sa < 0 ? 0 : 1);
+      let cb = na + (sb < 0 ? 0 : 1);
+      while (sa >= 0 && nextCut(kind, toolOf, offsetOf, count, runs, tool, ref, ca0) >= 0) ca++;
+      while (sb >= 0 && nextCut(kind, toolOf, offsetOf, count, runs, tool, off, cb0) >= 0) cb++;
+      res[0] = ca;
+      res[1] = cb;
+      res[2] = sb;
+      res[3] = lastB;
+      return 1;
     }
-  }
-  /** Next cutting segment index, or -1. */
-  next(): number {
-    const tp = this.tp;
-    while (this.r < this.runs.length) {
-      const run = this.runs[this.r]!;
-      const end = run.endSeg < 0 ? tp.segmentCount : run.endSeg;
-      while (this.i < end) {
-        const s = this.i++;
-        if (isCut(tp.kind[s]!) && tp.tool[s] === this.tool && tp.offset[s] === this.offset) return s;
-      }
-      this.r++;
-      this.skipToRun();
+    na++;
+    lastB = sb;
+    const va = (sa + 1) * 3;
+    const vb = (sb + 1) * 3;
+    const dx = Math.abs(pos[va]! - pos[vb]!);
+    const dy = Math.abs(pos[va + 1]! - pos[vb + 1]!);
+    const dz = Math.abs(pos[va + 2]! - pos[vb + 2]!);
+    if (dx > tol || dy > tol || dz > tol || kind[sa] !== kind[sb]) {
+      res[0] = na;
+      res[1] = sa;
+      res[2] = sb;
+      return 2;
     }
-    return -1;
   }
 }
 
@@ -75,43 +110,25 @@ export function compareFixtures(tp: Toolpath, runs: CutRun[], tol: number): Fixt
     if (!l.includes(r.offset)) l.push(r.offset);
   }
   const pos = tp.positions;
+  const res = new Int32Array(4);
   for (const [tool, offs] of offsetsOfTool) {
     if (offs.length < 2) continue;
     const ref = offs[0]!;
     for (let k = 1; k < offs.length; k++) {
       const off = offs[k]!;
-      const a = new CutCursor(tp, runs, tool, ref);
-      const b = new CutCursor(tp, runs, tool, off);
-      let na = 0;
-      let lastB = -1;
-      for (;;) {
-        const sa = a.next();
-        const sb = b.next();
-        if (sa < 0 && sb < 0) break;
-        if (sa < 0 || sb < 0) {
-          let ca = na + (sa < 0 ? 0 : 1);
-          let cb = na + (sb < 0 ? 0 : 1);
-          while (sa >= 0 && a.next() >= 0) ca++;
-          let firstExtra = sb;
-          while (sb >= 0 && b.next() >= 0) cb++;
-          const line = firstExtra >= 0 ? tp.line[firstExtra]! : lastB >= 0 ? tp.line[lastB]! : 0;
-          out.push({ tool, refOffset: ref, offset: off, line, reason: `${cb} cutting moves instead of ${ca}` });
-          break;
-        }
-        na++;
-        lastB = sb;
+      const what = walkPair(tp, runs, tool, ref, off, tol, res);
+      if (what === 1) {
+        const [ca, cb, firstExtra, lastB] = res as unknown as [number, number, number, number];
+        const line = firstExtra >= 0 ? tp.line[firstExtra]! : lastB >= 0 ? tp.line[lastB]! : 0;
+        out.push({ tool, refOffset: ref, offset: off, line, reason: `${cb} cutting moves instead of ${ca}` });
+      } else if (what === 2) {
+        const [na, sa, sb] = res as unknown as [number, number, number];
         const va = (sa + 1) * 3;
         const vb = (sb + 1) * 3;
-        const dx = Math.abs(pos[va]! - pos[vb]!);
-        const dy = Math.abs(pos[va + 1]! - pos[vb + 1]!);
-        const dz = Math.abs(pos[va + 2]! - pos[vb + 2]!);
-        if (dx > tol || dy > tol || dz > tol || tp.kind[sa] !== tp.kind[sb]) {
-          out.push({
-            tool, refOffset: ref, offset: off, line: tp.line[sb]!,
-            reason: `move ${na} ends at ${fmt(pos[vb]!)}, ${fmt(pos[vb + 1]!)}, ${fmt(pos[vb + 2]!)} instead of ${fmt(pos[va]!)}, ${fmt(pos[va + 1]!)}, ${fmt(pos[va + 2]!)} (line ${tp.line[sa]!})`,
-          });
-          break;
-        }
+        out.push({
+          tool, refOffset: ref, offset: off, line: tp.line[sb]!,
+          reason: `move ${na} ends at ${fmt(pos[vb]!)}, ${fmt(pos[vb + 1]!)}, ${fmt(pos[vb + 2]!)} instead of ${fmt(pos[va]!)}, ${fmt(pos[va + 1]!)}, ${fmt(pos[va + 2]!)} (line ${tp.line[sa]!})`,
+        });
       }
     }
   }

@@ -84,6 +84,79 @@ export function toolpathLinePairs(
   return out;
 }
 
+type Column = Float32Array<ArrayBuffer> | Uint32Array<ArrayBuffer> | Uint16Array<ArrayBuffer> | Uint8Array<ArrayBuffer>;
+interface ColumnType<T extends Column> {
+  new (length: number): T;
+  new (buffer: ArrayBuffer): T;
+  readonly BYTES_PER_ELEMENT: number;
+}
+/** ES2024 resizable ArrayBuffer, typed here because the project's lib is ES2023. */
+interface Resizable {
+  readonly byteLength: number;
+  resize(byteLength: number): void;
+}
+const ResizableBuffer = ArrayBuffer as unknown as new (byteLength: number, options: { maxByteLength: number }) => ArrayBuffer & Resizable;
+const CAN_RESIZE = typeof (ArrayBuffer.prototype as Partial<Resizable>).resize === "function";
+/** Elements moved per step when a column is handed over (small, so the move never holds two copies). */
+const MOVE_STEP = 1 << 18;
+
+/**
+ * An append-only column of one toolpath field. It grows in place inside a resizable ArrayBuffer that reserves
+ * address space for `maxLength` elements and commits memory only as it fills, so growing never copies and never
+ * holds the old and the new array at once (doubling peaks at 3x the data, 1.5x growth at 2.5x). `take()` moves
+ * the data into an ordinary array of exactly the final length, a step at a time from the end while the resizable
+ * buffer shrinks, so the move too holds the data about once. Without resizable buffers it grows by 1.5x.
+ * @internal used by the analysis loop, which writes into small plain chunks and appends them here.
+ */
+export class ToolpathColumn<T extends Column> {
+  length = 0;
+  private rab: (ArrayBuffer & Resizable) | null = null;
+  private view: T;
+  constructor(private readonly type: ColumnType<T>, private readonly maxLength: number) {
+    if (CAN_RESIZE) {
+      try {
+        this.rab = new ResizableBuffer(0, { maxByteLength: maxLength * type.BYTES_PER_ELEMENT });
+      } catch {
+        this.rab = null; // address space refused: fall back to growing copies
+      }
+    }
+    this.view = this.rab ? new type(this.rab) : new type(1024);
+  }
+  /** Appends the first `count` elements of `src`. */
+  append(src: T, count: number): void {
+    const need = this.length + count;
+    if (need > this.maxLength) throw new Error("toolpath column over its limit");
+    if (this.rab) this.rab.resize(need * this.type.BYTES_PER_ELEMENT); // the view tracks the length
+    else if (need > this.view.length) {
+      const grown = new this.type(Math.min(this.maxLength, Math.max(need, Math.ceil(this.view.length * 1.5))));
+      grown.set(this.view.subarray(0, this.length));
+      this.view = grown;
+    }
+    this.view.set(count === src.length ? src : src.subarray(0, count), this.length);
+    this.length = need;
+  }
+  /** The data as an ordinary array of exactly `length` elements; the column is empty afterwards. */
+  take(): T {
+    const n = this.length;
+    this.length = 0;
+    const rab = this.rab;
+    if (!rab) {
+      const v = this.view;
+      this.view = new this.type(0);
+      return (n === v.length ? v : v.subarray(0, n)) as T;
+    }
+    const out = new this.type(n);
+    const bpe = this.type.BYTES_PER_ELEMENT;
+    for (let end = n; end > 0; ) {
+      const start = end > MOVE_STEP ? end - MOVE_STEP : 0;
+      out.set(this.view.subarray(start, end), start);
+      rab.resize(start * bpe);
+      end = start;
+    }
+    return out;
+  }
+}
+
 const B64 = "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
 const B64_CODES = new Uint8Array(64);
 for (let i = 0; i < 64; i++) B64_CODES[i] = B64.charCodeAt(i);
