@@ -1012,14 +1012,7 @@ class Engine {
     this.spindleDir = 5;
     this.spindleSaid = false;
     this.overTravelSaid = 0;
-    const s = this.tcSeconds;
-    this.gS[S_TC_S]! += s;
-    this.gS[S_TOTAL_S]! += s;
-    this.tS[this.toolSlot * SSTRIDE + S_TC_S]! += s;
-    this.tS[this.toolSlot * SSTRIDE + S_TOTAL_S]! += s;
-    const oi = this.curOff();
-    this.oS[oi * SSTRIDE + S_TC_S]! += s;
-    this.oS[oi * SSTRIDE + S_TOTAL_S]! += s;
+    this.addSeconds(S_TC_S, this.tcSeconds);
   }
   dwell(line: number, p: number, given: boolean): void {
     if (!given || !(p >= 0)) {
@@ -1029,12 +1022,16 @@ class Engine {
     this.addDwell(p);
   }
   addDwell(sec: number): void {
-    this.gS[S_DWELL_S]! += sec;
+    this.addSeconds(S_DWELL_S, sec);
+  }
+  /** Adds `sec` to one time slot and to the total, for the program, the current tool and the current offset. */
+  addSeconds(slot: number, sec: number): void {
+    this.gS[slot]! += sec;
     this.gS[S_TOTAL_S]! += sec;
-    this.tS[this.toolSlot * SSTRIDE + S_DWELL_S]! += sec;
+    this.tS[this.toolSlot * SSTRIDE + slot]! += sec;
     this.tS[this.toolSlot * SSTRIDE + S_TOTAL_S]! += sec;
     const oi = this.curOff();
-    this.oS[oi * SSTRIDE + S_DWELL_S]! += sec;
+    this.oS[oi * SSTRIDE + slot]! += sec;
     this.oS[oi * SSTRIDE + S_TOTAL_S]! += sec;
   }
   setComp(line: number, comp: number, mask: number): void {
