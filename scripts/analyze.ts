@@ -3,6 +3,8 @@
  * Exit codes: 0 no error findings, 1 error findings, 2 bad input (not a text program, unreadable file, bad arguments).
  */
 import { readFileSync } from "node:fs";
+import { z } from "zod";
+import { machineProfileSchema, workOffsetValuesSchema } from "../lib/machine-profile";
 import {
   analyzeProgram,
   checkTextProgram,
@@ -30,8 +32,8 @@ function parseArgs(argv: string[]): { file: string; opts: AnalyzeOptions; json: 
       return v;
     };
     if (a === "--json") json = true;
-    else if (a === "--machine") opts.machine = readJson(value(), "machine profile") as MachineProfile;
-    else if (a === "--offsets") opts.workOffsets = readJson(value(), "work offsets") as AnalyzeOptions["workOffsets"];
+    else if (a === "--machine") opts.machine = validated(machineProfileSchema, readJson(value(), "machine profile"), "machine profile");
+    else if (a === "--offsets") opts.workOffsets = validated(workOffsetValuesSchema, readJson(value(), "work offsets"), "work offsets");
     else if (a === "--safe-z") {
       const v = Number(value());
       if (!Number.isFinite(v)) fail("--safe-z needs a number");
@@ -53,6 +55,14 @@ function parseArgs(argv: string[]): { file: string; opts: AnalyzeOptions; json: 
   }
   if (file === undefined) fail("no file given (usage: analyze FILE [--machine machine.json] [--safe-z N] [--json])");
   return { file, opts, json };
+}
+
+/** One line naming every bad field, so a hand-written profile is fixed in one go. */
+function validated<T extends z.ZodType>(schema: T, data: unknown, what: string): z.infer<T> {
+  const r = schema.safeParse(data);
+  if (r.success) return r.data;
+  const issues = r.error.issues.map((i) => `${i.path.join(".") || "(top)"}: ${i.message}`);
+  fail(`${what} is invalid: ${issues.join("; ")}`);
 }
 
 function readJson(path: string, what: string): unknown {

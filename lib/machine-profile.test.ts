@@ -1,0 +1,66 @@
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { spawnSync } from "node:child_process";
+import { describe, expect, it } from "vitest";
+import { DEMO_MACHINES } from "../db/demo-data";
+import { analyzeProgram } from "./gcode";
+import { machineProfileSchema, toMachineProfile, workOffsetValuesSchema } from "./machine-profile";
+
+const root = join(import.meta.dirname, "..");
+const cli = (...args: string[]) =>
+  spawnSync("npm", ["run", "--silent", "analyze", "--", ...args], { cwd: root, encoding: "utf8", timeout: 60_000 });
+
+describe("machine profile", () => {
+  it("every demo machine row maps to a valid engine profile", () => {
+    for (const m of DEMO_MACHINES) {
+      const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...m } as Parameters<typeof toMachineProfile>[0]);
+      expect(machineProfileSchema.safeParse(profile).success).toBe(true);
+      expect(profile.travel.x).toEqual({ min: m.travelXMin, max: m.travelXMax });
+    }
+  });
+
+  it("refuses a partial profile, naming each missing field, and inverted travel", () => {
+    const r = machineProfileSchema.safeParse({ units: "mm", travel: { x: { min: 0, max: -1 } } });
+    expect(r.success).toBe(false);
+    const paths = r.error!.issues.map((i) => i.path.join("."));
+    for (const p of ["travel.x", "travel.y", "rapidRate", "hMustEqualT", "workOffsetCount"]) expect(paths).toContain(p);
+  });
+
+  it("work offset values take G54-G59, G59.1-G59.3 and G54.1 Pn keys only", () => {
+    expect(workOffsetValuesSchema.safeParse({ G54: { x: 1, y: 2, z: 3 }, "G59.3": { x: 0, y: 0, z: 0 }, "G54.1 P12": { x: 0, y: 0, z: 0 } }).success).toBe(true);
+    expect(workOffsetValuesSchema.safeParse({ G53: { x: 0, y: 0, z: 0 } }).success).toBe(false);
+    expect(workOffsetValuesSchema.safeParse({ G54: { x: 0, y: 0 } }).success).toBe(false);
+  });
+
+  it("a demo machine's profile drives the time estimate: its tool change time is counted", () => {
+    const bench = DEMO_MACHINES[0]!;
+    const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...bench } as Parameters<typeof toMachineProfile>[0]);
+    const a = analyzeProgram("G21 G90 G54\nT1 M6\nT2 M6\nM30\n", { machine: profile });
+    expect(a.time.toolChangeSeconds).toBeCloseTo(2 * bench.toolChangeSeconds, 9);
+  });
+});
+
+describe("analyze CLI options", () => {
+  const dir = mkdtempSync(join(tmpdir(), "cg-cli-"));
+  const program = join(dir, "p.nc");
+  writeFileSync(program, "G21 G90 G54\nG0 X0 Y0 Z5\nM30\n");
+
+  it("a partial --machine file exits 2 with one line naming the bad fields", { timeout: 60_000 }, () => {
+    const file = join(dir, "partial.json");
+    writeFileSync(file, JSON.stringify({ units: "mm" }));
+    const r = cli(program, "--machine", file);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/machine profile is invalid: .*travel.*rapidRate/);
+  });
+
+  it("an unknown offset code in --offsets exits 2", { timeout: 60_000 }, () => {
+    const file = join(dir, "offsets.json");
+    writeFileSync(file, JSON.stringify({ G99: { x: 0, y: 0, z: 0 } }));
+    const r = cli(program, "--offsets", file);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/work offsets is invalid/);
+  });
+});

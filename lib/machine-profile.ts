@@ -1,0 +1,71 @@
+import { z } from "zod";
+import type { AnalyzeOptions, MachineProfile } from "./gcode/types";
+
+const range = z
+  .object({ min: z.number().finite(), max: z.number().finite() })
+  .refine((r) => r.min < r.max, { message: "min must be below max" });
+const positive = z.number().finite().positive();
+
+/** A machine profile as the engine takes it; the CLI's --machine file and the machines table both meet it. */
+export const machineProfileSchema = z
+  .object({
+    units: z.enum(["mm", "inch"]),
+    travel: z.object({ x: range, y: range, z: range }),
+    rapidRate: positive,
+    maxFeed: positive,
+    maxSpindle: positive,
+    acceleration: positive,
+    toolChangeSeconds: z.number().finite().nonnegative(),
+    manualToolChange: z.boolean(),
+    spindleProgramControlled: z.boolean(),
+    hMustEqualT: z.boolean(),
+    safeZ: z.number().finite(),
+    workOffsetCount: z.number().int().min(1).max(300),
+  })
+  .strict() satisfies z.ZodType<MachineProfile>;
+
+/** Work offset origins in machine coordinates, keyed "G54", "G59.1", "G54.1 P3". */
+export const workOffsetValuesSchema = z.record(
+  z.string().regex(/^G5[4-9](\.[1-3])?$|^G54\.1 P\d{1,3}$/, "a work offset code such as G54, G59.1 or G54.1 P3"),
+  z.object({ x: z.number().finite(), y: z.number().finite(), z: z.number().finite() }).strict(),
+) satisfies z.ZodType<NonNullable<AnalyzeOptions["workOffsets"]>>;
+
+/** The engine's profile from a machines row (same fields, travel folded into ranges). */
+export function toMachineProfile(m: {
+  units: "mm" | "inch";
+  travelXMin: number;
+  travelXMax: number;
+  travelYMin: number;
+  travelYMax: number;
+  travelZMin: number;
+  travelZMax: number;
+  rapidRate: number;
+  maxFeed: number;
+  maxSpindle: number;
+  acceleration: number;
+  toolChangeSeconds: number;
+  manualToolChange: boolean;
+  spindleProgramControlled: boolean;
+  hMustEqualT: boolean;
+  safeZ: number;
+  workOffsetCount: number;
+}): MachineProfile {
+  return {
+    units: m.units,
+    travel: {
+      x: { min: m.travelXMin, max: m.travelXMax },
+      y: { min: m.travelYMin, max: m.travelYMax },
+      z: { min: m.travelZMin, max: m.travelZMax },
+    },
+    rapidRate: m.rapidRate,
+    maxFeed: m.maxFeed,
+    maxSpindle: m.maxSpindle,
+    acceleration: m.acceleration,
+    toolChangeSeconds: m.toolChangeSeconds,
+    manualToolChange: m.manualToolChange,
+    spindleProgramControlled: m.spindleProgramControlled,
+    hMustEqualT: m.hMustEqualT,
+    safeZ: m.safeZ,
+    workOffsetCount: m.workOffsetCount,
+  };
+}
