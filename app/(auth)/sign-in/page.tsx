@@ -5,9 +5,10 @@ import { SignInForm } from "./sign-in-form";
 
 export const metadata: Metadata = { title: "Sign in" };
 
-export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string | string[] }> }) {
+export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string | string[]; changed?: string | string[] }> }) {
   if (await getCurrentUser()) redirect("/");
-  const raw = (await searchParams).next;
+  const sp = await searchParams;
+  const raw = sp.next;
   const next = typeof raw === "string" && raw.startsWith("/") && !raw.startsWith("//") ? raw : "/";
   return (
     <main className="mx-auto flex min-h-dvh max-w-md flex-col justify-center px-6 py-12">
@@ -19,6 +20,11 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       </div>
       <section className="rounded-lg border border-rule bg-panel p-6 shadow-sm">
         <h1 className="mb-4 text-xl font-semibold">Sign in</h1>
+        {sp.changed === "1" && (
+          <p role="status" className="mb-4 rounded-md bg-ok/10 px-3 py-2 text-sm text-ok">
+            Password changed. Sign in with the new one.
+          </p>
+        )}
         <SignInForm next={next} />
       </section>
     </main>
