@@ -743,7 +743,7 @@ class Engine {
       if (mask & B_S) this.setSpindle(line);
       if (mask & B_AXES) {
         if (this.motion === 800) this.say(R.modalConflict, "error", line, "axis words with no motion mode in force (G80)");
-        else this.motionBlock(line, this.motion, false, 0);
+        else this.motionBlock(line, this.motion, 0);
       }
       return;
     }
@@ -909,7 +909,7 @@ class Engine {
       if (g0Other & 2) this.machineMove(line);
       else if (this.motion === 800) {
         this.say(R.modalConflict, "error", line, "axis words with no motion mode in force (G80)");
-      } else this.motionBlock(line, this.motion, motionCode >= 0, mask);
+      } else this.motionBlock(line, this.motion, mask);
     } else if (g0Other & 2 && !axesUsed) {
       this.say(R.wordInvalid, "warning", line, "G53 without axis words");
     } else if ((motionCode === 20 || motionCode === 30) && !axesUsed) {
@@ -1212,7 +1212,7 @@ class Engine {
     }
   }
 
-  motionBlock(line: number, motion: number, explicit: boolean, maskIn: number): void {
+  motionBlock(line: number, motion: number, maskIn: number): void {
     const mask = maskIn === 0 ? this.mask : maskIn;
     if (!this.offSelected && !this.offsetSaid) {
       this.offsetSaid = true;
@@ -1229,19 +1229,19 @@ class Engine {
     }
     if (motion === 10 || motion === 382) {
       this.target(mask);
-      this.cutChecks(line, explicit);
+      this.cutChecks(line);
       this.linear(line, K_FEED);
       return;
     }
     if (motion === 20 || motion === 30) {
-      this.cutChecks(line, explicit);
+      this.cutChecks(line);
       this.arc(line, motion === 20, mask);
       return;
     }
     this.cycle(line, motion, mask);
   }
 
-  cutChecks(line: number, explicit: boolean): void {
+  cutChecks(line: number): void {
     if (this.inverseTime ? !(this.mask & B_F) : !(this.feed > 0)) {
       if (this.inverseTime) {
         this.say(R.feedMissing, "error", line, "G93 inverse time: every feed move needs its own F word");
@@ -1250,7 +1250,6 @@ class Engine {
         this.say(R.feedMissing, "error", line, "feed move with no feed rate in force");
       }
     }
-    void explicit;
     if (this.toolIdx === NO_TOOL_IDX && !this.toolSaid) {
       this.toolSaid = true;
       this.say(R.toolNotLoaded, "warning", line,
@@ -1727,7 +1726,7 @@ class Engine {
     const pos = this.pos;
     this.counts.cycles++;
     if (this.comp !== 40) this.say(R.compInvalid, "error", line, "canned cycle with cutter compensation on");
-    this.cutChecks(line, true);
+    this.cutChecks(line);
     let ia: number, ib: number, ic: number, la: number, lb: number, lc: number;
     if (this.plane === 17) {
       ia = 0; ib = 1; ic = 2; la = L_X; lb = L_Y; lc = L_Z;
