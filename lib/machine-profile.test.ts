@@ -5,7 +5,7 @@ import { spawnSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { DEMO_MACHINES } from "../db/demo-data";
 import { analyzeProgram } from "./gcode";
-import { machineProfileSchema, toMachineProfile, workOffsetValuesSchema } from "./machine-profile";
+import { machineProfileSchema, toMachineProfile, workOffsetValuesSchema, type MachineFields } from "./machine-profile";
 
 const root = join(import.meta.dirname, "..");
 const cli = (...args: string[]) =>
@@ -14,7 +14,7 @@ const cli = (...args: string[]) =>
 describe("machine profile", () => {
   it("every demo machine row maps to a valid engine profile", () => {
     for (const m of DEMO_MACHINES) {
-      const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...m } as Parameters<typeof toMachineProfile>[0]);
+      const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...m } as MachineFields);
       expect(machineProfileSchema.safeParse(profile).success).toBe(true);
       expect(profile.travel.x).toEqual({ min: m.travelXMin, max: m.travelXMax });
     }
@@ -35,7 +35,7 @@ describe("machine profile", () => {
 
   it("a demo machine's profile drives the time estimate: its tool change time is counted", () => {
     const bench = DEMO_MACHINES[0]!;
-    const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...bench } as Parameters<typeof toMachineProfile>[0]);
+    const profile = toMachineProfile({ hMustEqualT: true, notes: "", ...bench } as MachineFields);
     const a = analyzeProgram("G21 G90 G54\nT1 M6\nT2 M6\nM30\n", { machine: profile });
     expect(a.time.toolChangeSeconds).toBeCloseTo(2 * bench.toolChangeSeconds, 9);
   });

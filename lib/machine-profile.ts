@@ -1,5 +1,6 @@
 import { z } from "zod";
 import type { AnalyzeOptions, MachineProfile } from "./gcode/types";
+import type { MachineInput } from "./validation";
 
 const range = z
   .object({ min: z.number().finite(), max: z.number().finite() })
@@ -30,26 +31,11 @@ export const workOffsetValuesSchema = z.record(
   z.object({ x: z.number().finite(), y: z.number().finite(), z: z.number().finite() }).strict(),
 ) satisfies z.ZodType<NonNullable<AnalyzeOptions["workOffsets"]>>;
 
+/** A machines row's engine-facing fields (what the machine form validates, less name and notes). */
+export type MachineFields = Omit<MachineInput, "name" | "notes">;
+
 /** The engine's profile from a machines row (same fields, travel folded into ranges). */
-export function toMachineProfile(m: {
-  units: "mm" | "inch";
-  travelXMin: number;
-  travelXMax: number;
-  travelYMin: number;
-  travelYMax: number;
-  travelZMin: number;
-  travelZMax: number;
-  rapidRate: number;
-  maxFeed: number;
-  maxSpindle: number;
-  acceleration: number;
-  toolChangeSeconds: number;
-  manualToolChange: boolean;
-  spindleProgramControlled: boolean;
-  hMustEqualT: boolean;
-  safeZ: number;
-  workOffsetCount: number;
-}): MachineProfile {
+export function toMachineProfile(m: MachineFields): MachineProfile {
   return {
     units: m.units,
     travel: {

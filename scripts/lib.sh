@@ -26,12 +26,17 @@ cg_as_pg() {
 
 # Sets the defaults every script shares and exports them for the processes it starts.
 # Empty strings count as unset, as in the app's env module.
-cg_env_defaults() {
-  export NEXT_TELEMETRY_DISABLED=1
+# Creates the data folder (default .data) and exports its absolute path as CYCLEGATE_DATA_DIR.
+cg_resolve_data_dir() {
   local data="${CYCLEGATE_DATA_DIR:-$CG_ROOT/.data}"
   mkdir -p "$data"
   CYCLEGATE_DATA_DIR="$(cd "$data" && pwd -P)"
   export CYCLEGATE_DATA_DIR
+}
+
+cg_env_defaults() {
+  export NEXT_TELEMETRY_DISABLED=1
+  cg_resolve_data_dir
   export PORT="${PORT:-3000}"
   export CYCLEGATE_HOST="${CYCLEGATE_HOST:-127.0.0.1}"
   export SMTP_PORT="${SMTP_PORT:-2525}"

@@ -15,10 +15,7 @@ source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
 cd "$CG_ROOT"
 
 export CYCLEGATE_PG_CLUSTER=test
-CYCLEGATE_DATA_DIR="${CYCLEGATE_DATA_DIR:-$CG_ROOT/.data}"
-mkdir -p "$CYCLEGATE_DATA_DIR"
-CYCLEGATE_DATA_DIR="$(cd "$CYCLEGATE_DATA_DIR" && pwd -P)"
-export CYCLEGATE_DATA_DIR
+cg_resolve_data_dir
 export PORT="${CYCLEGATE_TEST_PORT:-3100}"
 export SMTP_PORT="${CYCLEGATE_TEST_SMTP_PORT:-2625}"
 export SMTP_URL="smtp://127.0.0.1:$SMTP_PORT"
