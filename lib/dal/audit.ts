@@ -3,24 +3,28 @@ import { and, count, desc, eq, gte, ilike, lt, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "@/db";
 import { auditEvents } from "@/db/schema";
+import { flushAuditRollups } from "@/lib/audit";
 import { authorize } from "@/lib/auth/session";
+import { calendarDate, decimalNumber, singleLineText } from "@/lib/validation";
 
 export const AUDIT_PAGE_SIZE = 50;
 
-const dateOnly = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/, "Use YYYY-MM-DD.")
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), "Not a date.");
 const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+const optional = <T extends z.ZodType>(schema: T) => z.preprocess(blankToUndefined, schema.optional());
 
 export const auditFilterSchema = z.object({
-  actor: z.preprocess(blankToUndefined, z.string().trim().max(254).optional()),
-  action: z.preprocess(blankToUndefined, z.string().trim().max(64).optional()),
-  objectType: z.preprocess(blankToUndefined, z.string().trim().max(32).optional()),
-  objectId: z.preprocess(blankToUndefined, z.string().trim().max(64).optional()),
-  from: z.preprocess(blankToUndefined, dateOnly.optional()),
-  to: z.preprocess(blankToUndefined, dateOnly.optional()),
-  page: z.preprocess(blankToUndefined, z.coerce.number().int().min(1).max(100_000).default(1)),
+  actor: optional(singleLineText({ max: 254 })),
+  action: optional(singleLineText({ max: 64 })),
+  objectType: optional(singleLineText({ max: 32 })),
+  objectId: optional(singleLineText({ max: 64 })),
+  from: optional(calendarDate()),
+  to: optional(calendarDate()),
+  page: z.preprocess(
+    blankToUndefined,
+    decimalNumber("Use a page number.")
+      .refine((n) => Number.isInteger(n) && n >= 1 && n <= 100_000, "Use a page number from 1 to 100000.")
+      .default(1),
+  ),
 });
 
 export type AuditFilter = z.infer<typeof auditFilterSchema>;
@@ -36,9 +40,10 @@ export interface AuditRow {
   ip: string | null;
 }
 
-/** One page of events, newest first; dates are whole UTC days, `to` included. */
+/** One page of events, newest first; dates are whole UTC days, `to` included. Closed roll-up windows are written first. */
 export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number }> {
   await authorize("readAudit");
+  await flushAuditRollups();
   const where: SQL[] = [];
   const escape = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
   if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${escape(filter.actor)}%`));

@@ -19,6 +19,7 @@ import { signIn } from "@/lib/auth/sign-in";
 import * as throttle from "@/lib/auth/throttle";
 import { actAs, formData, jsonRequest, makeUser } from "./helpers";
 import { requestContext, type JarCookie } from "./request-context";
+import { DEVICE_COOKIE } from "@/lib/auth/device";
 
 const checks = vi.hoisted(() => ({ n: 0 }));
 
@@ -50,7 +51,7 @@ const post = (email: string, password: string) =>
 
 /** The device cookie a successful sign-in left in this browser, to carry to a later request. */
 function deviceCookie(): Map<string, JarCookie> {
-  return new Map([...requestContext.jar].filter(([name]) => name === "cg_device"));
+  return new Map([...requestContext.jar].filter(([name]) => name === DEVICE_COOKIE));
 }
 
 beforeEach(() => {
@@ -111,6 +112,7 @@ describe("lockout is no denial of service (item 6)", () => {
     expect((await signIn(u.email, u.password)).ok).toBe(true);
     const tablet = deviceCookie();
     expect(tablet.size).toBe(1);
+    checks.n = 0;
 
     // Someone elsewhere guesses from many addresses until untrusted callers are refused.
     let refused = 0;
@@ -135,6 +137,7 @@ describe("lockout is no denial of service (item 6)", () => {
     requestContext.reset("10.63.0.1");
     expect((await signIn(u.email, u.password)).ok).toBe(true);
     const device = deviceCookie();
+    checks.n = 0;
     requestContext.reset("10.63.0.1");
     requestContext.restore(device);
     const statuses = await Promise.all(Array.from({ length: 20 }, (_, i) => post(u.email, `wrong-${i}`)));

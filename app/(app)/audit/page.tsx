@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { auditFilterSchema, listAuditEvents } from "@/lib/dal/audit";
 
 export const metadata: Metadata = { title: "Audit record" };
@@ -18,8 +17,7 @@ const FILTERS = [
 ] as const;
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<Search> }) {
-  const { allowed } = await pageAccess("readAudit");
-  if (!allowed) return <Forbidden what="reading the audit record" />;
+  await requirePagePermission("readAudit");
   const sp = await searchParams;
   const flat = Object.fromEntries(Object.entries(sp).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v]));
   const parsed = auditFilterSchema.safeParse(flat);
