@@ -7,9 +7,13 @@ describe("gateRequest", () => {
   const req = (method: string, url: string, headers: Record<string, string> = {}) => gateRequest({ method, url, headers });
   it("refuses methods the app does not serve with 405 and Allow", () => {
     for (const m of ["TRACE", "TRACK", "CONNECT", "PROPFIND", "MKCOL"]) {
-      expect(req(m, "/")).toMatchObject({ status: 405, error: `${m} is not supported here.`, headers: { Allow: "GET, HEAD, POST, PUT, PATCH, DELETE, OPTIONS" } });
+      expect(req(m, "/api/health")).toMatchObject({ status: 405, error: `${m} is not supported here.`, headers: { Allow: "GET, HEAD, POST, PUT, PATCH, DELETE, OPTIONS" } });
+    }
+    for (const m of ["TRACE", "OPTIONS", "PUT", "PATCH", "DELETE"]) {
+      expect(req(m, "/sign-in?next=/")).toMatchObject({ status: 405, headers: { Allow: "GET, HEAD, POST" } });
     }
     for (const m of ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"]) expect(req(m, "/api/health")).toBeNull();
+    for (const m of ["GET", "HEAD"]) expect(req(m, "/machines")).toBeNull();
   });
   it("bounds server-action bodies (POSTs outside /api) by their Content-Length", () => {
     expect(req("POST", "/sign-in", { "content-length": String(ACTION_BODY_LIMIT_BYTES) })).toBeNull();

@@ -8,8 +8,10 @@ import type { IncomingHttpHeaders } from "node:http";
 /** The largest server-action body (a form post to a page). next.config.ts gives Next the same limit. */
 export const ACTION_BODY_LIMIT_BYTES = 1024 * 1024;
 
-/** Methods any route of the app answers; everything else (TRACE, PROPFIND, ...) is a 405. */
-export const ALLOWED_METHODS = ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"] as const;
+/** Methods a route handler under /api may answer (Next answers 405 itself for one a route does not export). */
+export const API_METHODS = ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"] as const;
+/** Methods a page answers: reading it, and its server actions (POST). */
+export const PAGE_METHODS = ["GET", "HEAD", "POST"] as const;
 
 export interface GateRefusal {
   status: 405 | 411 | 413;
@@ -18,17 +20,20 @@ export interface GateRefusal {
 }
 
 /**
- * The refusal for a request the app must not pass on, or null. A POST to anything outside /api is
- * a server action: it must say how long it is (browsers always do), at most ACTION_BODY_LIMIT_BYTES.
- * Route handlers under /api check their own bodies (lib/http.ts, readJson and readBodyBytes).
+ * The refusal for a request the app must not pass on, or null. Outside /api only GET, HEAD and POST
+ * are served (TRACE, OPTIONS, DELETE... on a page are a 405); under /api only API_METHODS. A POST
+ * outside /api is a server action: it must say how long it is (browsers always do), at most
+ * ACTION_BODY_LIMIT_BYTES. Route handlers check their own bodies (lib/http.ts, readJson, readBodyBytes).
  */
 export function gateRequest(req: { method?: string; url?: string; headers: IncomingHttpHeaders }): GateRefusal | null {
   const method = req.method ?? "GET";
-  if (!(ALLOWED_METHODS as readonly string[]).includes(method)) {
-    return { status: 405, error: `${method} is not supported here.`, headers: { Allow: ALLOWED_METHODS.join(", ") } };
-  }
   const path = (req.url ?? "/").split("?")[0] ?? "/";
-  if (method !== "POST" || path === "/api" || path.startsWith("/api/")) return null;
+  const api = path === "/api" || path.startsWith("/api/");
+  const allowed: readonly string[] = api ? API_METHODS : PAGE_METHODS;
+  if (!allowed.includes(method)) {
+    return { status: 405, error: `${method} is not supported here.`, headers: { Allow: allowed.join(", ") } };
+  }
+  if (method !== "POST" || api) return null;
   const length = req.headers["content-length"];
   if (length === undefined) {
     return req.headers["transfer-encoding"] ? { status: 411, error: "Send the form with a Content-Length." } : null;

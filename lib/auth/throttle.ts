@@ -66,8 +66,11 @@ async function take(name: LimitName, key: string): Promise<RateLimiterRes> {
   try {
     return await limiters()[name].consume(key);
   } catch (e) {
-    if (e instanceof RateLimiterRes) return e;
-    throw e;
+    // consume() rejects with an Error when the store fails, and with the RateLimiterRes itself when
+    // the limit is passed. Not `instanceof RateLimiterRes`: the limiters are shared on globalThis, and a
+    // class from another bundle of the package (actions and route handlers are bundled apart) fails it.
+    if (e instanceof Error) throw e;
+    return e as RateLimiterRes;
   }
 }
 

@@ -7,7 +7,7 @@ import { createServer, request, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import type { Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { apiSignIn, appUrl, BASE_URL, DEMO_PASSWORD, signIn, useFreshPage } from "./browser";
+import { apiSignIn, appUrl, BASE_URL, DEMO_PASSWORD, signIn, submitSignIn, useFreshPage } from "./browser";
 
 const APP_ORIGIN = new URL(BASE_URL).origin;
 
@@ -106,6 +106,11 @@ describe("security headers on every answer (item 4)", () => {
   });
 
   it("methods the app does not serve (TRACE and the like) are 405 with Allow, headers included (item 8)", async () => {
+    for (const [method, path] of [["DELETE", "/sign-in"], ["OPTIONS", "/machines"], ["PUT", "/"]]) {
+      const res = await rawRequest(method!, path!);
+      expect(res.status, `${method} ${path}`).toBe(405);
+      expect(res.headers.allow).toBe("GET, HEAD, POST");
+    }
     for (const path of ["/", "/sign-in", "/api/health", "/api/session"]) {
       for (const method of ["TRACE", "PROPFIND", "MKCOL"]) {
         const res = await rawRequest(method, path);
@@ -230,6 +235,52 @@ describe("in the browser (items 1 and 4)", () => {
       await b.page.waitForURL((u) => u.pathname === "/machines");
       expect(new URL(b.page.url()).search).toBe("?x=1");
     });
+  });
+
+  /** A fresh operator account, made through the admin API, so throttling it upsets no other test. */
+  async function freshOperator(): Promise<{ email: string; password: string }> {
+    const admin = await apiSignIn("admin@cyclegate.test");
+    const email = `throttle-${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 6)}@cyclegate.test`;
+    const password = "a-long-enough-password";
+    const res = await fetch(appUrl("/api/users"), {
+      method: "POST",
+      headers: { "content-type": "application/json", cookie: admin },
+      body: JSON.stringify({ email, displayName: "Throttle Test", role: "operator", password }),
+    });
+    expect(res.status).toBe(201);
+    return { email, password };
+  }
+
+  const formAlert = (page: Page) => page.locator('[role="alert"]:not(#__next-route-announcer__)').filter({ hasText: /\S/ }).first();
+
+  it("the sign-in form says how long to wait once the limit is reached (items 2 and 6)", async () => {
+    const u = await freshOperator();
+    for (let i = 0; i < 5; i++) {
+      await submitSignIn(b.page, u.email, `not-it-${i}`);
+      await expect(formAlert(b.page).innerText()).resolves.toBe("The e-mail or the password is wrong.");
+    }
+    await submitSignIn(b.page, u.email, u.password);
+    await expect(formAlert(b.page).innerText()).resolves.toMatch(/^Too many failed tries\. Try again in \d+ s\.$/);
+  });
+
+  it("wrong current passwords on the account page are throttled like sign-ins (item 3)", async () => {
+    const u = await freshOperator();
+    await signIn(b.page, u.email, u.password);
+    await b.page.goto(appUrl("/account"));
+    const attempt = async (current: string, expected: string | RegExp) => {
+      await b.page.getByLabel("Current password").fill(current);
+      await b.page.getByLabel("New password", { exact: true }).fill("a-fine-new-password");
+      await b.page.getByLabel("Repeat new password").fill("a-fine-new-password");
+      await Promise.all([
+        b.page.waitForResponse((r) => r.request().method() === "POST" && new URL(r.url()).pathname === "/account"),
+        b.page.getByRole("button", { name: "Change password" }).click(),
+      ]);
+      await expect.poll(() => formAlert(b.page).innerText()).toMatch(expected);
+    };
+    for (let i = 0; i < 5; i++) await attempt(`not-mine-${i}`, /^The password is wrong\.$/);
+    await attempt(u.password, /^Too many failed tries\. Try again in \d+ s\.$/);
+    // Still signed in, password unchanged.
+    await expect(b.page.getByTestId("current-user").innerText()).resolves.toContain("Throttle Test");
   });
 
   it("a server action body over 1 MB is a 413, not a 500 (item 8)", async () => {
