@@ -1,5 +1,5 @@
 import "server-only";
-import { sql } from "drizzle-orm";
+import { desc, gt, sql } from "drizzle-orm";
 import { db, type Db } from "@/db";
 import { auditEvents, auditRollups } from "@/db/schema";
 
@@ -122,6 +122,39 @@ async function flushRollups(tx: Tx): Promise<void> {
       return { ...eventRow({ ...e, details }), at: r.lastAt };
     });
   if (rows.length > 0) await tx.insert(auditEvents).values(rows);
+}
+
+/** A roll-up whose window is still open: events counted so far that have no summary row yet. */
+export interface OpenRollup {
+  action: string;
+  actorEmail: string | null;
+  ip: string | null;
+  /** Events after the first one, so far. */
+  repeated: number;
+  lastAt: string;
+  /** When the summary row will be written. */
+  windowEnd: string;
+}
+
+/** The open roll-ups with repeats, most recent first (at most `limit`), so a reader sees what is still being counted. */
+export async function openAuditRollups(limit = 20): Promise<OpenRollup[]> {
+  const rows = await db()
+    .select({ event: auditRollups.event, repeats: auditRollups.repeats, lastAt: auditRollups.lastAt, windowEnd: auditRollups.windowEnd })
+    .from(auditRollups)
+    .where(gt(auditRollups.repeats, 0))
+    .orderBy(desc(auditRollups.lastAt))
+    .limit(limit);
+  return rows.map((r) => {
+    const e = r.event as RollupEvent;
+    return {
+      action: e.action,
+      actorEmail: e.actor?.email ?? null,
+      ip: e.ip ?? null,
+      repeated: r.repeats,
+      lastAt: r.lastAt.toISOString(),
+      windowEnd: r.windowEnd.toISOString(),
+    };
+  });
 }
 
 export type { Tx };

@@ -3,7 +3,7 @@ import { and, count, desc, eq, gte, ilike, lt, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "@/db";
 import { auditEvents } from "@/db/schema";
-import { flushAuditRollups } from "@/lib/audit";
+import { flushAuditRollups, openAuditRollups, type OpenRollup } from "@/lib/audit";
 import { authorize } from "@/lib/auth/session";
 import { calendarDate, decimalNumber, singleLineText } from "@/lib/validation";
 
@@ -40,8 +40,13 @@ export interface AuditRow {
   ip: string | null;
 }
 
-/** One page of events, newest first; dates are whole UTC days, `to` included. Closed roll-up windows are written first. */
-export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number }> {
+/**
+ * One page of events, newest first; dates are whole UTC days, `to` included. Closed roll-up windows
+ * are written first; `counting` lists the open ones (repeats counted, summary not yet written).
+ */
+export async function listAuditEvents(
+  filter: AuditFilter,
+): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number; counting: OpenRollup[] }> {
   await authorize("readAudit");
   await flushAuditRollups();
   const where: SQL[] = [];
@@ -53,7 +58,7 @@ export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: Audi
   if (filter.from) where.push(gte(auditEvents.at, new Date(`${filter.from}T00:00:00Z`)));
   if (filter.to) where.push(lt(auditEvents.at, new Date(Date.parse(`${filter.to}T00:00:00Z`) + 86_400_000)));
   const cond = where.length ? and(...where) : undefined;
-  const [rows, [totalRow]] = await Promise.all([
+  const [rows, [totalRow], counting] = await Promise.all([
     db()
       .select({
         id: auditEvents.id,
@@ -71,11 +76,13 @@ export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: Audi
       .limit(AUDIT_PAGE_SIZE)
       .offset((filter.page - 1) * AUDIT_PAGE_SIZE),
     db().select({ n: count() }).from(auditEvents).where(cond),
+    openAuditRollups(),
   ]);
   return {
     rows: rows.map((r) => ({ ...r, at: r.at.toISOString() })),
     total: totalRow?.n ?? 0,
     page: filter.page,
     pageSize: AUDIT_PAGE_SIZE,
+    counting,
   };
 }

@@ -34,6 +34,13 @@ async function readRecord(query: string) {
   return ((await res.json()) as { rows: { action: string; ip: string | null; details: Record<string, unknown> }[] }).rows;
 }
 
+/** The roll-ups still open, as the API lists them beside the rows. */
+async function readCounting() {
+  await actAs("lead");
+  const res = await auditRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/audit?page=1"), undefined);
+  return ((await res.json()) as { counting: { action: string; ip: string | null; repeated: number }[] }).counting;
+}
+
 beforeEach(() => requestContext.reset());
 
 describe("throttled sign-ins are rolled up per address", () => {
@@ -56,6 +63,10 @@ describe("throttled sign-ins are rolled up per address", () => {
     expect(during.length - before).toBe(1);
     // Bounded: at most one row per verified failure (the address limit) plus the roll-up's two.
     expect(during.length).toBeLessThanOrEqual(ADDRESS_LIMIT + 2);
+
+    // While the window is open, a reader is told what is still being counted.
+    const open = await readCounting();
+    expect(open.find((c) => c.ip === ip && c.action === "session.sign-in-throttled")?.repeated).toBe(29);
 
     await closeOpenWindows();
     const record = (await readRecord("action=session.sign-in-throttled")).filter((r) => r.ip === ip);
