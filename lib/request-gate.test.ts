@@ -31,7 +31,11 @@ describe("security headers", () => {
     expect(csp).toContain("frame-ancestors 'none'");
     expect(csp).toContain("script-src 'self' 'nonce-abc123' 'strict-dynamic'");
     expect(csp).not.toContain("unsafe-eval");
-    expect(csp).not.toContain("unsafe-inline");
+    // Inline code and <style> elements need the nonce; only style attributes are allowed inline.
+    expect(csp).toMatch(/script-src [^;]*/);
+    expect(/script-src [^;]*/.exec(csp)![0]).not.toContain("unsafe-inline");
+    expect(/style-src [^;]*/.exec(csp)![0]).not.toContain("unsafe-inline");
+    expect(csp).toContain("style-src-attr 'unsafe-inline'");
     expect(csp).not.toContain("upgrade-insecure-requests");
     expect(prod).toMatchObject({ "X-Frame-Options": "DENY", "X-Content-Type-Options": "nosniff", "Cache-Control": "no-store" });
     expect(prod["Strict-Transport-Security"]).toBeUndefined();
