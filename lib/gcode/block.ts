@@ -163,7 +163,7 @@ pp.full = function (this: Engine, line: number): void {
   // modal groups on this line
   let gSeen = 0;
   let g0Axis = -1; // group-0 code that uses axis words
-  let g0Other = 0; // bit set of group 0 codes present: 1=G4 2=G53 4=G92.1 8=G92.2 16=G92.3
+  let g0Other = 0; // group 0 codes present: 1=G4 2=G53 4=G92.1 8=G92.2 16=G92.3 32=G69/G50/G50.1/G15
   let unknownG = -1;
   for (let i = 0; i < this.gN; i++) {
     const code = gc[i]!;

@@ -5,7 +5,8 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
-import type { Analysis, AnalyzeOptions, MachineProfile } from "../../lib/gcode/types";
+import type { Analysis, AnalyzeOptions } from "../../lib/gcode/types";
+import { testInchMachine } from "./profiles";
 
 const run = (lines: string[], options?: AnalyzeOptions): Analysis => analyzeProgram(lines.join("\n") + "\n", options);
 const on = (a: Analysis, line: number) => a.findings.filter((f) => f.line === line).map((f) => `${f.severity} ${f.rule}`);
@@ -147,20 +148,7 @@ describe("incremental moves from a position the program never set", () => {
 });
 
 describe("units come from what executes", () => {
-  const inchMachine: MachineProfile = {
-    units: "inch",
-    travel: { x: { min: -30, max: 0 }, y: { min: -16, max: 0 }, z: { min: -20, max: 0 } },
-    rapidRate: 945,
-    maxFeed: 400,
-    maxSpindle: 10000,
-    acceleration: 100,
-    toolChangeSeconds: 5,
-    manualToolChange: false,
-    spindleProgramControlled: true,
-    hMustEqualT: true,
-    safeZ: 0.1,
-    workOffsetCount: 6,
-  };
+  const inchMachine = testInchMachine({ maxSpindle: 10000 });
   it("a G20 inside a subprogram that is never called does not set the program's units", () => {
     const a = run(["G17 G90 G94 G54", "G0 X1 Y1 Z1", "M30", "O100", "G20", "M99"], { machine: { ...inchMachine, units: "mm" } });
     expect(a.units).toBe("mm");

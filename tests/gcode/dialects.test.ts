@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
-import { MotionKind, type Analysis, type AnalyzeOptions, type Dialect, type MachineProfile } from "../../lib/gcode/types";
+import { MotionKind, type Analysis, type AnalyzeOptions, type Dialect } from "../../lib/gcode/types";
+import { testMachine } from "./profiles";
 
 const run = (lines: string[], options?: AnalyzeOptions): Analysis => analyzeProgram(lines.join("\n") + "\n", options);
 const both = (lines: string[], options?: AnalyzeOptions): Record<Dialect, Analysis> => ({
@@ -18,20 +19,7 @@ const errors = (a: Analysis) => a.findings.filter((f) => f.severity === "error")
 const kindsOn = (a: Analysis, line: number) => [...a.toolpath.line.keys()].filter((i) => a.toolpath.line[i] === line).map((i) => a.toolpath.kind[i]);
 const head = ["G21 G17 G90 G94", "T1 M6", "S1000 M3", "G54 G0 X0 Y0", "G43 H1 Z25"];
 
-const machine: MachineProfile = {
-  units: "mm",
-  travel: { x: { min: -500, max: 0 }, y: { min: -400, max: 0 }, z: { min: -400, max: 0 } },
-  rapidRate: 20000,
-  maxFeed: 10000,
-  maxSpindle: 10000,
-  acceleration: 1000,
-  toolChangeSeconds: 5,
-  manualToolChange: false,
-  spindleProgramControlled: true,
-  hMustEqualT: true,
-  safeZ: 0,
-  workOffsetCount: 6,
-};
+const machine = testMachine({ maxSpindle: 10000, travel: { x: { min: -500, max: 0 }, y: { min: -400, max: 0 }, z: { min: -400, max: 0 } } });
 
 describe("which dialect runs", () => {
   it("is common by default, the profile's when it names one, the option's above both", () => {

@@ -6,27 +6,15 @@ import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
-import type { Analysis, AnalyzeOptions, MachineProfile } from "../../lib/gcode/types";
+import type { Analysis, AnalyzeOptions } from "../../lib/gcode/types";
+import { testMachine } from "./profiles";
 
 const run = (lines: string[], options?: AnalyzeOptions): Analysis => analyzeProgram(lines.join("\n") + "\n", options);
 const rules = (a: Analysis, rule: string) => a.findings.filter((f) => f.rule === rule);
 const linesOf = (a: Analysis, rule: string) => rules(a, rule).map((f) => f.line);
 const posts = (name: string) => readFileSync(join(__dirname, "..", "fixtures", "posts", name), "utf8");
 
-const machine: MachineProfile = {
-  units: "mm",
-  travel: { x: { min: -500, max: 0 }, y: { min: -400, max: 0 }, z: { min: -400, max: 0 } },
-  rapidRate: 20000,
-  maxFeed: 10000,
-  maxSpindle: 10000,
-  acceleration: 1000,
-  toolChangeSeconds: 6,
-  manualToolChange: false,
-  spindleProgramControlled: true,
-  hMustEqualT: true,
-  safeZ: 0,
-  workOffsetCount: 6,
-};
+const machine = testMachine({ maxSpindle: 10000, toolChangeSeconds: 6 });
 
 describe("one definition of a cut: a feed move that starts or ends at or below safe Z (common practice)", () => {
   const positioning = ["G21 G17 G90 G94", "T1 M6", "G54 G1 X-8 Y0 F5000", "G1 Z50 F5000", "G43 H1 Z25", "S1000 M3", "G1 Z2 F5000", "G1 Z-1 F300", "G1 X40 F900", "G1 Z25 F300", "G1 Z50 F5000", "M30"];

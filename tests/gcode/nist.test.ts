@@ -6,6 +6,7 @@
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
 import { MotionKind, type AnalyzeOptions, type Analysis, type MachineProfile, type RuleId } from "../../lib/gcode/types";
+import { testMachine } from "./profiles";
 
 type P3 = [number, number, number];
 interface Seg {
@@ -69,20 +70,9 @@ function errorsOn(a: Analysis, line: number) {
   return a.findings.filter((f) => f.line === line && f.severity === "error");
 }
 
-const machine: MachineProfile = {
-  units: "mm",
+const machine: MachineProfile = testMachine({
   travel: { x: { min: -100, max: 600 }, y: { min: -100, max: 400 }, z: { min: -500, max: 100 } },
-  rapidRate: 20000,
-  maxFeed: 10000,
-  maxSpindle: 12000,
-  acceleration: 1000,
-  toolChangeSeconds: 5,
-  manualToolChange: false,
-  spindleProgramControlled: true,
-  hMustEqualT: true,
-  safeZ: 0,
-  workOffsetCount: 6,
-};
+});
 
 describe("[NIST] 3.5.16 canned cycles, G81 worked examples", () => {
   it("example 1: G90 G81 G98 X4 Y5 Z1.5 R2.8 from (1,2,3)", () => {

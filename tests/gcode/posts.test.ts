@@ -12,47 +12,26 @@ import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
 import type { Analysis, AnalyzeOptions, Bounds, MachineProfile, RuleId, Severity } from "../../lib/gcode/types";
+import { testInchMachine, testMachine } from "./profiles";
+import { DEMO_MACHINES } from "../../db/demo-data";
+import { toMachineProfile, type MachineFields } from "../../lib/machine-profile";
 
 const dir = join(__dirname, "..", "fixtures", "posts");
 
-// The demo shop's machines (db/demo-data.ts) and an inch twin of the vertical centre.
-const vmc: MachineProfile = {
-  units: "mm",
+// The demo shop's machines (db/demo-data.ts): the bench mill with its hand-switched spindle as it is, the vertical
+// centre with spindle speeds up to 12000 rpm, and an inch twin of the vertical centre.
+const vmc = testMachine({
   travel: { x: { min: -762, max: 0 }, y: { min: -406, max: 0 }, z: { min: -508, max: 0 } },
   rapidRate: 24_000,
-  maxFeed: 10_000,
-  maxSpindle: 12_000,
   acceleration: 2_500,
   toolChangeSeconds: 4.5,
-  manualToolChange: false,
-  spindleProgramControlled: true,
-  hMustEqualT: true,
   safeZ: 2,
   workOffsetCount: 54,
-};
+});
 const profiles: Record<string, MachineProfile> = {
   vmc,
-  "vmc-inch": {
-    ...vmc,
-    units: "inch",
-    travel: { x: { min: -30, max: 0 }, y: { min: -16, max: 0 }, z: { min: -20, max: 0 } },
-    rapidRate: 945,
-    maxFeed: 400,
-    acceleration: 100,
-    safeZ: 0.1,
-  },
-  bench: {
-    ...vmc,
-    travel: { x: { min: -305, max: 0 }, y: { min: -160, max: 0 }, z: { min: -280, max: 0 } },
-    rapidRate: 2_500,
-    maxFeed: 1_500,
-    maxSpindle: 5_000,
-    acceleration: 250,
-    toolChangeSeconds: 45,
-    manualToolChange: true,
-    spindleProgramControlled: false,
-    workOffsetCount: 6,
-  },
+  "vmc-inch": testInchMachine({ toolChangeSeconds: 4.5, workOffsetCount: 54 }),
+  bench: toMachineProfile({ notes: "", ...DEMO_MACHINES[0]! } as MachineFields),
 };
 
 interface Expected {
