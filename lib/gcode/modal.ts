@@ -80,6 +80,7 @@ pp.dwell = function (this: Engine, line: number, p: number, given: boolean): voi
 /** Common dialect: rotation, scaling, mirror and polar coordinates are known but not applied. */
 pp.transform = function (this: Engine, line: number, code: number): void {
   this.xform = code;
+  this.moveWatch = true;
   this.say(R.notEvaluated, "warning", line,
     `${fmtCode(code)} transforms the coordinates and the engine does not apply it: the moves until its cancel are analysed as written, not as the machine runs them`);
   this.markNotEvaluated(line);

@@ -19,6 +19,7 @@ declare module "./state" {
   interface Engine {
     target(mask: number): void;
     motionBlock(line: number, motion: number, maskIn: number): void;
+    watchMove(line: number): void;
     startPoint(line: number): void;
     feedCheck(line: number): void;
     cutChecks(line: number): void;
@@ -61,6 +62,31 @@ pp.target = function (this: Engine, mask: number): void {
 
 pp.motionBlock = function (this: Engine, line: number, motion: number, maskIn: number): void {
   const mask = maskIn === 0 ? this.mask : maskIn;
+  if (this.moveWatch) this.watchMove(line);
+  if (motion === G0) {
+    this.target(mask);
+    this.linear(line, K_RAPID);
+    return;
+  }
+  if (motion === G1 || motion === G38_2) {
+    this.target(mask);
+    this.feedCheck(line);
+    this.linear(line, K_FEED);
+    return;
+  }
+  if (motion === G2 || motion === G3) {
+    this.feedCheck(line);
+    this.arc(line, motion === G2, mask);
+    return;
+  }
+  this.cycle(line, motion, mask);
+};
+
+/**
+ * What only some moves need: the first move's checks, the first move after a tool change, moves under a transform.
+ * Off (`moveWatch` false) for the ordinary moves of a program that has moved in G90.
+ */
+pp.watchMove = function (this: Engine, line: number): void {
   this.committed = true;
   if (!this.offSelected && !this.offsetSaid) {
     this.offsetSaid = true;
@@ -80,23 +106,7 @@ pp.motionBlock = function (this: Engine, line: number, motion: number, maskIn: n
     this.incSince = 0;
   }
   if (this.xform !== 0) this.markNotEvaluated(line);
-  if (motion === G0) {
-    this.target(mask);
-    this.linear(line, K_RAPID);
-    return;
-  }
-  if (motion === G1 || motion === G38_2) {
-    this.target(mask);
-    this.feedCheck(line);
-    this.linear(line, K_FEED);
-    return;
-  }
-  if (motion === G2 || motion === G3) {
-    this.feedCheck(line);
-    this.arc(line, motion === G2, mask);
-    return;
-  }
-  this.cycle(line, motion, mask);
+  this.moveWatch = this.xform !== 0 || !this.movedAbsolute;
 };
 
 /**
@@ -215,16 +225,15 @@ pp.cutting = function (this: Engine, line: number): void {
 /** Where a stretch of cutting starts: its tool, offset, approach line and how many cutting blocks came before. */
 pp.newStretch = function (this: Engine, oi: number): void {
   this.stretchBlock = this.blocks;
-  const i = this.stretchN * 4;
-  if (i + 4 > this.stretches.length) {
+  const i = this.stretchN * 3;
+  if (i + 3 > this.stretches.length) {
     if (this.stretchN >= 1_000_000) return;
-    this.stretches = growI32(this.stretches, i + 4);
+    this.stretches = growI32(this.stretches, i + 3);
   }
   const s = this.stretches;
-  s[i] = this.toolIdx;
-  s[i + 1] = oi;
-  s[i + 2] = this.approach === 0 ? this.line : this.approach;
-  s[i + 3] = this.runBase + this.runBlocks;
+  s[i] = this.toolIdx * 256 + oi;
+  s[i + 1] = this.approach === 0 ? this.line : this.approach;
+  s[i + 2] = this.runBase + this.runBlocks;
   this.stretchN++;
 };
 

@@ -150,7 +150,8 @@ export interface PartOffsetProblem {
  * under another offset (G56 typed for G55) is "stray" at its first cut there; a tool that cuts under fewer part
  * offsets (its offset line lost, so the next part runs under the previous offset again) is "missing" at the
  * line where that part's work starts, found by splitting its cutting blocks under that offset into equal parts.
- * `stretches` holds per cut stretch: tool, offset, approach line, cutting blocks of that tool and offset before it.
+ * `stretches` holds per cut stretch: tool * 256 + offset, approach line, cutting blocks of that tool and offset
+ * before it.
  */
 export function checkPartOffsets(runs: CutRun[], parts: number, stretches: Int32Array, stretchN: number): PartOffsetProblem[] {
   const users = new Map<number, number>();
@@ -172,11 +173,12 @@ export function checkPartOffsets(runs: CutRun[], parts: number, stretches: Int32
   for (const r of runs) blocks.set(r.tool * 256 + r.offset, (blocks.get(r.tool * 256 + r.offset) ?? 0) + r.blocks);
   const stretchAt = (tool: number, offset: number, before: number): number => {
     let first = 0;
+    const key = tool * 256 + offset;
     for (let i = 0; i < stretchN; i++) {
-      const s = i * 4;
-      if (stretches[s] !== tool || stretches[s + 1] !== offset) continue;
-      if (first === 0) first = stretches[s + 2]!;
-      if (stretches[s + 3]! >= before) return stretches[s + 2]!;
+      const s = i * 3;
+      if (stretches[s] !== key) continue;
+      if (first === 0) first = stretches[s + 1]!;
+      if (stretches[s + 2]! >= before) return stretches[s + 1]!;
     }
     return first;
   };

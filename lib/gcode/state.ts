@@ -122,6 +122,7 @@ export class Engine {
   committed = false; // a move, an origin or a shift happened: the report units are fixed
   firstMotion = true;
   movedAbsolute = false; // a move ran in G90 (so G91 across a tool change was not meant)
+  moveWatch = true; // the next move needs watchMove (first move, after a tool change, under a transform)
   relAxes = 0; // axes measured from an unset start point (a program in G91 from its start)
   lastCut = false; // the last move was a cut
   cutNow = false; // the move being accounted is a cut
@@ -255,7 +256,7 @@ export class Engine {
   readonly blocksOf = new Map<number, number>();
   cutBlock = -1;
   approach = 0; // first line after the last cut that starts the way to the next one (0: not yet)
-  stretches = new Int32Array(64); // per cut stretch: tool, offset, approach line, cut blocks before it
+  stretches = new Int32Array(96); // per cut stretch: tool * 256 + offset, approach line, cut blocks before it
   stretchN = 0;
   stretchBlock = -1;
 

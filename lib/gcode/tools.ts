@@ -94,6 +94,7 @@ pp.changeTool = function (this: Engine, line: number): void {
   // G91 left on across the change by a program that moves in G90: reported at the first move after the change,
   // if G90 does not come first (a program in G91 from its start means it)
   this.incSince = this.absolute || !this.movedAbsolute ? 0 : line;
+  if (this.incSince !== 0) this.moveWatch = true;
   if (this.comp !== 40) this.say(R.compInvalid, "error", line, "tool change with cutter compensation on");
   this.changeCount++;
   if (this.changes.length < 10000) this.changes.push({ line, tool: this.selectedT < 0 ? null : this.selectedT, previous: prev });
