@@ -32,6 +32,9 @@ export const DEMO_MACHINES: NewMachine[] = [
     hMustEqualT: true,
     safeZ: 2,
     workOffsetCount: 6,
+    dialect: "common",
+    // a hand-fed mill's control with a looser arc check than the usual default (machine units: mm)
+    arcTolerance: 0.05,
   },
   {
     name: "Vertical centre 2",
@@ -53,5 +56,7 @@ export const DEMO_MACHINES: NewMachine[] = [
     hMustEqualT: true,
     safeZ: 2,
     workOffsetCount: 54,
+    dialect: "common",
+    arcTolerance: null,
   },
 ];

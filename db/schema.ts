@@ -20,6 +20,8 @@ import {
 
 export const roleEnum = pgEnum("role", ["admin", "lead", "programmer", "operator"]);
 export const unitsEnum = pgEnum("units", ["mm", "inch"]);
+/** The engine's dialects (lib/gcode/types.ts DIALECTS). */
+export const dialectEnum = pgEnum("dialect", ["common", "strict-ngc"]);
 
 export const ROLES = roleEnum.enumValues;
 export type Role = (typeof ROLES)[number];
@@ -91,6 +93,10 @@ export const machines = pgTable(
     hMustEqualT: boolean("h_must_equal_t").notNull().default(true),
     safeZ: doublePrecision("safe_z").notNull(),
     workOffsetCount: integer("work_offset_count").notNull(),
+    /** How the control reads programs (lib/gcode README "Dialects"). */
+    dialect: dialectEnum("dialect").notNull().default("common"),
+    /** Arc radius tolerance, machine units; null: the dialect's default. */
+    arcTolerance: doublePrecision("arc_tolerance"),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
   },
@@ -103,6 +109,7 @@ export const machines = pgTable(
       "machines_positive",
       sql`${t.rapidRate} > 0 and ${t.maxFeed} > 0 and ${t.maxSpindle} > 0 and ${t.acceleration} > 0 and ${t.toolChangeSeconds} >= 0 and ${t.workOffsetCount} between 1 and 300`,
     ),
+    check("machines_arc_tolerance", sql`${t.arcTolerance} is null or (${t.arcTolerance} > 0 and ${t.arcTolerance} <= 1)`),
   ],
 );
 

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import type { AnalyzeOptions, MachineProfile } from "./gcode/types";
+import { DIALECTS, type AnalyzeOptions, type MachineProfile } from "./gcode/types";
 import type { MachineInput } from "./validation";
 
 const range = z
@@ -22,6 +22,8 @@ export const machineProfileSchema = z
     hMustEqualT: z.boolean(),
     safeZ: z.number().finite(),
     workOffsetCount: z.number().int().min(1).max(300),
+    dialect: z.enum(DIALECTS).optional(),
+    arcTolerance: positive.max(1).optional(),
   })
   .strict() satisfies z.ZodType<MachineProfile>;
 
@@ -53,5 +55,8 @@ export function toMachineProfile(m: MachineFields): MachineProfile {
     hMustEqualT: m.hMustEqualT,
     safeZ: m.safeZ,
     workOffsetCount: m.workOffsetCount,
+    dialect: m.dialect,
+    // no value: the dialect's default tolerance
+    ...(m.arcTolerance === null ? {} : { arcTolerance: m.arcTolerance }),
   };
 }

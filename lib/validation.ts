@@ -186,6 +186,13 @@ export const machineSchema = z
       .refine(Number.isInteger, "Enter a whole number.")
       .refine((n) => n >= 1, "At least 1.")
       .refine((n) => n <= 300, "At most 300."),
+    dialect: z.enum(["common", "strict-ngc"], { error: "Pick a dialect." }).default("common"),
+    // Blank means the dialect's default tolerance.
+    arcTolerance: z
+      .union([z.literal("").transform(() => null), z.null(), finite("Arc tolerance")])
+      .optional()
+      .transform((v) => v ?? null)
+      .refine((n) => n === null || (n > 0 && n <= 1), "Arc tolerance must be above 0 and at most 1."),
   })
   // Each cross-field check runs as soon as its own fields parsed, so one submit shows every error.
   .refine((m) => m.travelXMin < m.travelXMax, {

@@ -1,19 +1,24 @@
 /**
- * CLI: npm run --silent analyze -- FILE [--machine machine.json] [--safe-z N] [--parts N] [--offsets offsets.json] [--json]
+ * CLI: npm run --silent analyze -- FILE [--machine machine.json] [--dialect common|strict-ngc] [--arc-tolerance N]
+ *   [--safe-z N] [--parts N] [--offsets offsets.json] [--chord-tolerance N] [--json]
  * Exit codes: 0 no error findings, 1 error findings, 2 bad input (not a text program, unreadable file, bad arguments).
  */
 import { readFileSync } from "node:fs";
 import { z } from "zod";
 import { machineProfileSchema, workOffsetValuesSchema } from "../lib/machine-profile";
 import {
+  DIALECTS,
   analyzeProgram,
   checkTextProgram,
   serializeAnalysis,
   type Analysis,
   type AnalyzeOptions,
   type Bounds,
-  type MachineProfile,
+  type Dialect,
 } from "../lib/gcode";
+
+const USAGE =
+  "usage: analyze FILE [--machine machine.json] [--dialect common|strict-ngc] [--arc-tolerance N] [--safe-z N] [--parts N] [--offsets offsets.json] [--chord-tolerance N] [--json]";
 
 function fail(msg: string): never {
   process.stderr.write(`analyze: ${msg}\n`);
@@ -42,18 +47,26 @@ function parseArgs(argv: string[]): { file: string; opts: AnalyzeOptions; json: 
       const v = Number(value());
       if (!Number.isInteger(v) || v < 1) fail("--parts needs a positive integer");
       opts.parts = v;
+    } else if (a === "--dialect") {
+      const v = value();
+      if (!(DIALECTS as readonly string[]).includes(v)) fail(`--dialect needs one of ${DIALECTS.join(", ")}`);
+      opts.dialect = v as Dialect;
+    } else if (a === "--arc-tolerance") {
+      const v = Number(value());
+      if (!(v > 0) || !Number.isFinite(v)) fail("--arc-tolerance needs a positive number");
+      opts.arcTolerance = v;
     } else if (a === "--chord-tolerance") {
       const v = Number(value());
       if (!(v > 0)) fail("--chord-tolerance needs a positive number");
       opts.chordTolerance = v;
     } else if (a === "--help" || a === "-h") {
-      process.stdout.write("usage: analyze FILE [--machine machine.json] [--safe-z N] [--parts N] [--offsets offsets.json] [--chord-tolerance N] [--json]\n");
+      process.stdout.write(`${USAGE}\n`);
       process.exit(0);
     } else if (a.startsWith("--")) fail(`unknown option ${a}`);
     else if (file === undefined) file = a;
     else fail(`unexpected argument ${a}`);
   }
-  if (file === undefined) fail("no file given (usage: analyze FILE [--machine machine.json] [--safe-z N] [--json])");
+  if (file === undefined) fail(`no file given (${USAGE})`);
   return { file, opts, json };
 }
 
@@ -93,7 +106,12 @@ function hms(s: number): string {
 function report(file: string, a: Analysis): string {
   const u = a.units;
   const out: string[] = [];
-  out.push(`${file}: ${a.lineCount} lines, ${a.byteLength} bytes, units ${u}${a.unitsDeclared ? "" : " (assumed)"}`);
+  out.push(`${file}: ${a.lineCount} lines, ${a.byteLength} bytes, units ${u}${a.unitsDeclared ? "" : " (assumed)"}, dialect ${a.dialect}`);
+  const c = a.coverage;
+  if (c.evaluatedShare < 1) {
+    const shown = c.lines.slice(0, 10).join(", ") + (c.notEvaluatedLines > 10 ? ", ..." : "");
+    out.push(`PARTIAL: ${(c.evaluatedShare * 100).toFixed(1)}% of ${c.codeLines} code lines evaluated; ${c.notEvaluatedLines} not (lines ${shown})`);
+  }
   if (a.programNumber !== null) out.push(`program O${a.programNumber}`);
   out.push(`bounds          ${box(a.bounds)}`);
   out.push(`cutting bounds  ${box(a.cuttingBounds)}`);

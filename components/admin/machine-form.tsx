@@ -4,7 +4,7 @@ import { useActionState } from "react";
 import { CheckboxField, FormMessage, SelectField, SubmitButton, TextArea, TextField } from "@/components/ui/form";
 import { initialFormState, type FormState } from "@/lib/form-state";
 
-type MachineValues = Record<string, string | number | boolean>;
+type MachineValues = Record<string, string | number | boolean | null>;
 type Action = (prev: FormState, fd: FormData) => Promise<FormState>;
 
 const NUMBER_FIELDS: { name: string; label: string; hint?: string; step?: string }[] = [
@@ -28,7 +28,7 @@ export function MachineForm({ action, initial, submitLabel }: { action: Action; 
   const [state, formAction] = useActionState(action, initialFormState);
   const value = (name: string): string => {
     const v = state.values?.[name] ?? initial?.[name];
-    return v === undefined || typeof v === "boolean" ? "" : String(v);
+    return v === undefined || v === null || typeof v === "boolean" ? "" : String(v);
   };
   const checked = (name: string, fallback: boolean): boolean =>
     state.values ? state.values[name] === "on" : typeof initial?.[name] === "boolean" ? (initial[name] as boolean) : fallback;
@@ -57,6 +57,31 @@ export function MachineForm({ action, initial, submitLabel }: { action: Action; 
             hint={f.hint}
           />
         ))}
+      </fieldset>
+      <fieldset className="grid gap-4 sm:grid-cols-2">
+        <legend className="mb-2 text-sm font-semibold text-ink-soft">How the control reads programs</legend>
+        <SelectField
+          label="Dialect"
+          name="dialect"
+          defaultValue={value("dialect") || "common"}
+          errors={errors}
+          aria-describedby="dialect-hint dialect-error"
+        >
+          <option value="common">Common industrial (most posts)</option>
+          <option value="strict-ngc">Strict RS274/NGC</option>
+        </SelectField>
+        <TextField
+          label="Arc radius tolerance"
+          name="arcTolerance"
+          inputMode="decimal"
+          defaultValue={value("arcTolerance")}
+          errors={errors}
+          hint="Machine units. Blank: the dialect's default (common 0.02 mm / 0.001 in, strict 0.002 mm / 0.0002 in)."
+        />
+        <p id="dialect-hint" className="text-sm text-ink-soft sm:col-span-2">
+          Strict reads every program as the NIST RS274/NGC interpreter does; common accepts what posts for
+          industrial controls write (G80 beside G0, G91.1, full circles from I/J, rounded arcs).
+        </p>
       </fieldset>
       <fieldset className="space-y-1">
         <legend className="mb-2 text-sm font-semibold text-ink-soft">How the machine works</legend>

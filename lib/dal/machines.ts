@@ -31,6 +31,8 @@ const columns = {
   hMustEqualT: machines.hMustEqualT,
   safeZ: machines.safeZ,
   workOffsetCount: machines.workOffsetCount,
+  dialect: machines.dialect,
+  arcTolerance: machines.arcTolerance,
   updatedAt: machines.updatedAt,
 };
 

@@ -55,10 +55,11 @@ export const ARC_RADIUS_TOO_SMALL = 2;
 
 /**
  * Radius-format arc ([NIST] 3.5.3.1): R > 0 at most 180 degrees, R < 0 more than 180. Fills `out`; returns ARC_OK,
- * ARC_SAME_POINT (end = start) or ARC_RADIUS_TOO_SMALL (|R| shorter than half the chord).
+ * ARC_SAME_POINT (end = start) or ARC_RADIUS_TOO_SMALL (|R| shorter than half the chord). `slack` is how much
+ * shorter than half the chord |R| may be and still be read as a rounded half circle (0: the [NIST] rule only).
  */
 export function arcFromRadius(
-  sa: number, sb: number, ea: number, eb: number, radius: number, cw: boolean, out: Float64Array,
+  sa: number, sb: number, ea: number, eb: number, radius: number, cw: boolean, out: Float64Array, slack = 0,
 ): number {
   const dx = ea - sa;
   const dy = eb - sb;
@@ -67,7 +68,8 @@ export function arcFromRadius(
   const r = Math.abs(radius);
   const half = chord / 2;
   // the NIST interpreter accepts a half chord up to radius * (1 + 1e-12) and then treats it as exactly 180 degrees
-  if (half / r > 1 + 1e-12) return ARC_RADIUS_TOO_SMALL;
+  if (half / r > 1 + 1e-12 && half - r > slack) return ARC_RADIUS_TOO_SMALL;
+  // a half chord longer than |R| (within the slack) is a half circle through both ends
   const h = half >= r ? 0 : Math.sqrt(r * r - half * half);
   // unit vector to the right of the chord direction
   const ux = dy / chord;
@@ -78,8 +80,9 @@ export function arcFromRadius(
   const cb = sb + dy / 2 + side * h * uy;
   out[ARC_CA] = ca;
   out[ARC_CB] = cb;
-  out[ARC_R] = r;
-  out[ARC_REND] = r;
+  const rr = half > r ? half : r;
+  out[ARC_R] = rr;
+  out[ARC_REND] = rr;
   const a0 = Math.atan2(sb - cb, sa - ca);
   const a1 = Math.atan2(eb - cb, ea - ca);
   out[ARC_A0] = a0;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { analyzeProgram, checkTextProgram, deserializeAnalysis, serializeAnalysis, segmentEndpoints } from "./index";
+import { ENGINE_VERSION, analyzeProgram, checkTextProgram, deserializeAnalysis, serializeAnalysis, segmentEndpoints } from "./index";
 import { arcExtremes, arcFromCenter, arcFromRadius, ARC_OK, ARC_RADIUS_TOO_SMALL, ARC_SWEEP, ARC_CA, ARC_CB, chordCount } from "./arc";
 import { trapezoidSeconds } from "./analyze";
 import { MotionKind } from "./types";
@@ -81,6 +81,16 @@ describe("toolpath layout and serialization", () => {
     expect(Array.from(back.toolpath.positions)).toEqual(Array.from(a.toolpath.positions));
     expect(Array.from(back.toolpath.kind)).toEqual(Array.from(a.toolpath.kind));
     expect(back.toolpath.segmentCount).toBe(a.toolpath.segmentCount);
+  });
+});
+
+describe("engine version", () => {
+  it("is a positive integer above the old format's 1, and every analysis carries it through JSON", () => {
+    expect(Number.isInteger(ENGINE_VERSION)).toBe(true);
+    expect(ENGINE_VERSION).toBeGreaterThanOrEqual(2);
+    const a = run(["G21 G90 G54", "G0 X1 Y1 Z1", "M30"]);
+    expect(a.version).toBe(ENGINE_VERSION);
+    expect(deserializeAnalysis(JSON.parse(JSON.stringify(serializeAnalysis(a)))).version).toBe(ENGINE_VERSION);
   });
 });
 

@@ -1,5 +1,6 @@
 /** Cyclegate analysis engine: pure TypeScript, no framework, database, DOM or Node imports. */
 export * from "./types";
+export { ENGINE_VERSION } from "./version";
 export { analyzeProgram, trapezoidSeconds } from "./analyze";
 export { checkTextProgram, assertTextProgram, MAX_PROGRAM_BYTES } from "./text";
 export {

@@ -7,6 +7,8 @@ export interface CutRun {
   offset: number;
   startSeg: number;
   endSeg: number;
+  /** Cutting blocks (lines run) in the run. */
+  blocks: number;
 }
 
 /** A part whose toolpath for a tool differs from the first part's. */
@@ -97,18 +99,123 @@ function walkPair(tp: Toolpath, runs: CutRun[], tool: number, ref: number, off: 
   }
 }
 
+/** The offsets each tool cuts under, in the order of its first cut under each. */
+export function offsetsByTool(runs: CutRun[]): Map<number, number[]> {
+  const out = new Map<number, number[]>();
+  for (const r of runs) {
+    let l = out.get(r.tool);
+    if (!l) out.set(r.tool, (l = []));
+    if (!l.includes(r.offset)) l.push(r.offset);
+  }
+  return out;
+}
+
+/**
+ * Parts per cycle as the program shows them: when more than half of the tools that cut repeat the same work
+ * (the same cutting moves, end points within `tol` in part coordinates) under two or more offsets, the most offsets
+ * one tool repeats its work under; else 1. A second-side or flipped-part program, whose offsets hold different
+ * operations, gives 1.
+ */
+export function findParts(tp: Toolpath, runs: CutRun[], tol: number): number {
+  const byTool = offsetsByTool(runs);
+  const res = new Int32Array(4);
+  let repeating = 0;
+  let most = 1;
+  for (const [tool, offs] of byTool) {
+    let same = 1;
+    for (let k = 1; k < offs.length; k++) if (walkPair(tp, runs, tool, offs[0]!, offs[k]!, tol, res) === 0) same++;
+    if (same >= 2) {
+      repeating++;
+      if (same > most) most = same;
+    }
+  }
+  return repeating * 2 > byTool.size ? most : 1;
+}
+
+/** A tool whose parts do not run under the part offsets. */
+export interface PartOffsetProblem {
+  tool: number;
+  /** "stray": it cuts under an offset that is not a part offset; "missing": a part offset it never cuts under. */
+  kind: "stray" | "missing";
+  /** The offset it cuts under instead (stray: that offset; missing: the offset its extra part runs under). */
+  offset: number;
+  /** The part offset concerned (missing), or the part offsets it lacks (first one; stray), or -1. */
+  partOffset: number;
+  /** Where that part of the tool's work starts (its approach line). */
+  line: number;
+}
+
+/**
+ * Checks each tool's cutting against the part offsets: the `parts` offsets most tools cut under. A tool that cuts
+ * under another offset (G56 typed for G55) is "stray" at its first cut there; a tool that cuts under fewer part
+ * offsets (its offset line lost, so the next part runs under the previous offset again) is "missing" at the
+ * line where that part's work starts, found by splitting its cutting blocks under that offset into equal parts.
+ * `stretches` holds per cut stretch: tool * 256 + offset, approach line, cutting blocks of that tool and offset
+ * before it.
+ */
+export function checkPartOffsets(runs: CutRun[], parts: number, stretches: Int32Array, stretchN: number): PartOffsetProblem[] {
+  const users = new Map<number, number>();
+  const order: number[] = [];
+  const byTool = offsetsByTool(runs);
+  for (const offs of byTool.values()) {
+    for (const o of offs) {
+      if (!users.has(o)) order.push(o);
+      users.set(o, (users.get(o) ?? 0) + 1);
+    }
+  }
+  const firstUse = new Map<number, number>();
+  for (const r of runs) if (!firstUse.has(r.offset)) firstUse.set(r.offset, firstUse.size);
+  order.sort((a, b) => users.get(b)! - users.get(a)! || firstUse.get(a)! - firstUse.get(b)!);
+  const partOffsets = order.slice(0, parts);
+  if (partOffsets.length < 2) return [];
+  partOffsets.sort((a, b) => firstUse.get(a)! - firstUse.get(b)!);
+  const blocks = new Map<number, number>();
+  for (const r of runs) blocks.set(r.tool * 256 + r.offset, (blocks.get(r.tool * 256 + r.offset) ?? 0) + r.blocks);
+  const stretchAt = (tool: number, offset: number, before: number): number => {
+    let first = 0;
+    const key = tool * 256 + offset;
+    for (let i = 0; i < stretchN; i++) {
+      const s = i * 3;
+      if (stretches[s] !== key) continue;
+      if (first === 0) first = stretches[s + 1]!;
+      if (stretches[s + 2]! >= before) return stretches[s + 1]!;
+    }
+    return first;
+  };
+  const out: PartOffsetProblem[] = [];
+  for (const [tool, offs] of byTool) {
+    const lacking = partOffsets.filter((o) => !offs.includes(o));
+    const stray = offs.filter((o) => !partOffsets.includes(o));
+    for (const o of stray) {
+      out.push({ tool, kind: "stray", offset: o, partOffset: lacking[0] ?? -1, line: stretchAt(tool, o, 0) });
+    }
+    if (stray.length > 0 || lacking.length === 0) continue;
+    // the lost offsets' parts ran under the part offset where this tool cut the most
+    let q = -1;
+    let most = -1;
+    for (const o of offs) {
+      const n = blocks.get(tool * 256 + o) ?? 0;
+      if (n > most) {
+        most = n;
+        q = o;
+      }
+    }
+    const copies = lacking.length + 1;
+    const perPart = Math.floor(most / copies);
+    for (let k = 1; k < copies; k++) {
+      out.push({ tool, kind: "missing", offset: q, partOffset: lacking[k - 1]!, line: stretchAt(tool, q, perPart * k) });
+    }
+  }
+  return out;
+}
+
 /**
  * For each tool, compares the cutting toolpath under each later work offset with the first offset's: same number of
  * cutting segments, same end points in part coordinates within `tol`. Returns the first difference per (tool, offset).
  */
 export function compareFixtures(tp: Toolpath, runs: CutRun[], tol: number): FixtureDifference[] {
   const out: FixtureDifference[] = [];
-  const offsetsOfTool = new Map<number, number[]>();
-  for (const r of runs) {
-    let l = offsetsOfTool.get(r.tool);
-    if (!l) offsetsOfTool.set(r.tool, (l = []));
-    if (!l.includes(r.offset)) l.push(r.offset);
-  }
+  const offsetsOfTool = offsetsByTool(runs);
   const pos = tp.positions;
   const res = new Int32Array(4);
   for (const [tool, offs] of offsetsOfTool) {

@@ -12,6 +12,15 @@
 /** Length units. */
 export type Units = "mm" | "inch";
 
+/**
+ * Dialect the program is read in (README "Dialects"): "common" is the word-address dialect most posts write for
+ * industrial controls (the default); "strict-ngc" is the [NIST] RS274/NGC interpreter's, to the letter.
+ */
+export type Dialect = "common" | "strict-ngc";
+
+/** Every dialect, default first. */
+export const DIALECTS: readonly Dialect[] = ["common", "strict-ngc"];
+
 /** Severity of a finding. */
 export type Severity = "error" | "warning" | "info";
 
@@ -125,6 +134,14 @@ export interface MachineProfile {
   safeZ: number;
   /** How many work offsets the control has (6 = G54..G59; more means G54.1 Pn is available). */
   workOffsetCount: number;
+  /** Dialect of the control (default "common"). */
+  dialect?: Dialect;
+  /**
+   * Largest accepted difference between an arc's start and end radius, and the most a radius-format R may fall
+   * short of half the chord and still be read as a half circle; machine units. Absent: the dialect's default
+   * (common 0.02 mm / 0.001 in, strict-ngc [NIST]'s 0.002 mm / 0.0002 in).
+   */
+  arcTolerance?: number;
 }
 
 /** Options of analyzeProgram. */
@@ -133,8 +150,15 @@ export interface AnalyzeOptions {
   machine?: MachineProfile;
   /** Safe Z for this program, program units; overrides the profile's. Default 0 (part zero on the top face). */
   safeZ?: number;
-  /** How many parts the program cuts under successive work offsets (default: the number of offsets that cut). */
+  /**
+   * The program's parts per cycle: identical parts cut under successive work offsets. Default: found from the
+   * program (README "Multi-part programs"), else 1.
+   */
   parts?: number;
+  /** Dialect; overrides the profile's (default "common"). */
+  dialect?: Dialect;
+  /** Arc radius tolerance in program units; overrides the profile's (see MachineProfile.arcTolerance). */
+  arcTolerance?: number;
   /** Known work offset values: "G54", "G55", "G54.1 P3" -> machine coordinates of part zero, program units. */
   workOffsets?: Record<string, { x: number; y: number; z: number }>;
   /** Arc flattening tolerance for the toolpath, program units (default 0.01 mm / 0.0005 in). */
@@ -206,7 +230,7 @@ export interface TimeBreakdown {
   rapidSeconds: number;
   /** Dwell time (G4 and cycle dwells). */
   dwellSeconds: number;
-  /** Tool change time (changes x toolChangeSeconds). */
+  /** Tool change time (changes x toolChangeSeconds); always 0 per work offset: changes are reported apart. */
   toolChangeSeconds: number;
   /** Machine-aware estimate: trapezoidal speed profile per move + tool changes + dwells (stops excluded). */
   totalSeconds: number;
@@ -238,7 +262,7 @@ export interface WorkOffsetSummary {
   feedLength: number;
   /** Rapid length. */
   rapidLength: number;
-  /** Time under this offset. */
+  /** Time of the moves and dwells under this offset (tool changes and machine moves are not charged to offsets). */
   time: TimeBreakdown;
 }
 
@@ -359,10 +383,32 @@ export interface MachineMoveSummary {
   length: number;
 }
 
+/** How much of the program the engine evaluated. */
+export interface Coverage {
+  /** Physical lines holding code (words, macro syntax or stray characters; not blank, comment-only or % lines). */
+  codeLines: number;
+  /**
+   * Code lines the engine did not evaluate although the control would run them: macro syntax, o-word control
+   * blocks, unknown G codes, lines skipped for an error, moves under a coordinate transform it does not apply,
+   * lines after the execution limit. Each physical line counts once however often it runs.
+   */
+  notEvaluatedLines: number;
+  /** (codeLines - notEvaluatedLines) / codeLines; 1 for a program without code. Under 1: the analysis is partial. */
+  evaluatedShare: number;
+  /** The first 1000 of those lines, ascending. */
+  lines: number[];
+}
+
 /** Result of analyzeProgram. */
 export interface Analysis {
-  /** Format version of this object. */
-  version: 1;
+  /** ENGINE_VERSION of the engine that made it: a stored analysis with an older number is out of date. */
+  version: number;
+  /** Dialect the program was read in. */
+  dialect: Dialect;
+  /** Arc radius tolerance used, report units (in the report units' own mode; see MachineProfile.arcTolerance). */
+  arcTolerance: number;
+  /** How much of the program was evaluated. */
+  coverage: Coverage;
   /** Program units: the first G20/G21, else the machine's, else mm. All lengths are in these units. */
   units: Units;
   /** Whether the program states its units (G20/G21) at all. */
@@ -387,7 +433,7 @@ export interface Analysis {
   toolChangeCount: number;
   /** Order of a multi-part program: see README. */
   toolOrder: "by-tool" | "by-part" | "single" | "mixed";
-  /** Parts the analysis assumed (option `parts`, else the number of offsets that cut, at least 1). */
+  /** Parts per cycle the analysis assumed (option `parts`, else found from the program, else 1). */
   parts: number;
   /** Bounds of all program-coordinate motion end points and arc extremes (part coordinates). */
   bounds: Bounds;

@@ -29,9 +29,16 @@ describe("admin pages in the browser", () => {
       "Default safe Z above part zero": "8", "Work offsets on the control": "6",
     };
     for (const [label, v] of Object.entries(values)) await b.page.getByLabel(label, { exact: true }).fill(v);
+    await b.page.getByLabel("Dialect").selectOption("strict-ngc");
+    await b.page.getByLabel("Arc radius tolerance").fill("0.01");
     await b.page.getByRole("button", { name: "Add machine" }).click();
     await b.page.waitForURL((u) => u.pathname === "/machines");
     await b.page.getByRole("cell", { name }).first().waitFor();
+    // The edit form shows what was saved.
+    await b.page.getByRole("row").filter({ hasText: name }).getByRole("link", { name: "Edit" }).click();
+    await b.page.waitForURL((u) => /^\/admin\/machines\/\d+$/.test(u.pathname));
+    await expect(b.page.getByLabel("Dialect").inputValue()).resolves.toBe("strict-ngc");
+    await expect(b.page.getByLabel("Arc radius tolerance").inputValue()).resolves.toBe("0.01");
   });
 
   it("creates a user who can then sign in, and disabling them ends their open session", async () => {

@@ -139,8 +139,8 @@ describe("G28 and G53 ([NIST] 3.5.8, 3.5.12)", () => {
     expect(a.findings.some((f) => f.line === 7 && f.severity === "error")).toBe(true);
   });
 
-  it("G53 needs G0 or G1 ([NIST] 3.5.12)", () => {
-    const a = run([...head, "G0 X0 Y0", "G43 H1 Z10", "G53 G2 X10 Y0 I5", "M30"]);
+  it("G53 needs G0 or G1 in strict-ngc ([NIST] 3.5.12)", () => {
+    const a = run([...head, "G0 X0 Y0", "G43 H1 Z10", "G53 G2 X10 Y0 I5", "M30"], { dialect: "strict-ngc" });
     expect(a.findings.some((f) => f.line === 6 && f.severity === "error")).toBe(true);
   });
 });

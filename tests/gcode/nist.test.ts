@@ -6,6 +6,7 @@
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "../../lib/gcode/index";
 import { MotionKind, type AnalyzeOptions, type Analysis, type MachineProfile, type RuleId } from "../../lib/gcode/types";
+import { testMachine } from "./profiles";
 
 type P3 = [number, number, number];
 interface Seg {
@@ -15,8 +16,9 @@ interface Seg {
   to: P3;
 }
 
+/** [NIST] behaviour is the strict-ngc dialect's (lib/gcode/README.md "Dialects"): every check here runs in it. */
 function run(lines: string[], options?: AnalyzeOptions): Analysis {
-  return analyzeProgram(lines.join("\n") + "\n", options);
+  return analyzeProgram(lines.join("\n") + "\n", { dialect: "strict-ngc", ...options });
 }
 
 /** Drawn segments of the toolpath (Jump links left out), optionally of one line. */
@@ -68,20 +70,9 @@ function errorsOn(a: Analysis, line: number) {
   return a.findings.filter((f) => f.line === line && f.severity === "error");
 }
 
-const machine: MachineProfile = {
-  units: "mm",
+const machine: MachineProfile = testMachine({
   travel: { x: { min: -100, max: 600 }, y: { min: -100, max: 400 }, z: { min: -500, max: 100 } },
-  rapidRate: 20000,
-  maxFeed: 10000,
-  maxSpindle: 12000,
-  acceleration: 1000,
-  toolChangeSeconds: 5,
-  manualToolChange: false,
-  spindleProgramControlled: true,
-  hMustEqualT: true,
-  safeZ: 0,
-  workOffsetCount: 6,
-};
+});
 
 describe("[NIST] 3.5.16 canned cycles, G81 worked examples", () => {
   it("example 1: G90 G81 G98 X4 Y5 Z1.5 R2.8 from (1,2,3)", () => {
@@ -303,7 +294,8 @@ describe("[NIST] 3.5.3.2 centre-format arc example", () => {
   // From (7,7): G17 G2 X10 Y16 I3 J4 -> centre (10,11), radius 5 ([NIST] 3.5.3.2, "The radius of this arc would be 5").
   // Derived [GEO]: start angle atan2(-4,-3) = -126.870 deg, end angle 90 deg; clockwise sweep 143.130 deg = 2.49809 rad;
   // length 5 x 2.49809 = 12.4905; the sweep passes 180 deg, so X reaches 10 - 5 = 5; box X[5,10] Y[7,16].
-  const a = run(["G20 G90 G94 G54 F10", "G0 X7 Y7 Z9", "g17 g2 x 10 y 16 i 3 j 4 z 9", "M2"]);
+  // Safe Z 10: at Z9 the arc is then a cut (a feed move that stays above safe Z would be positioning, issue 9).
+  const a = run(["G20 G90 G94 G54 F10", "G0 X7 Y7 Z9", "g17 g2 x 10 y 16 i 3 j 4 z 9", "M2"], { safeZ: 10 });
 
   it("has the arc's length", () => {
     expect(a.feedLength).toBeCloseTo(12.4905, 4);

@@ -30,12 +30,14 @@ describe("machine form", () => {
           toolChangeSeconds: -3,
           workOffsetCount: 2.5,
           safeZ: "",
+          dialect: "loose",
+          arcTolerance: 0,
         }),
       ),
     );
     expect(state.status).toBe(422);
     expect(Object.keys(state.fieldErrors ?? {}).sort()).toEqual(
-      ["maxSpindle", "name", "rapidRate", "safeZ", "toolChangeSeconds", "travelXMax", "units", "workOffsetCount"].sort(),
+      ["arcTolerance", "dialect", "maxSpindle", "name", "rapidRate", "safeZ", "toolChangeSeconds", "travelXMax", "units", "workOffsetCount"].sort(),
     );
     expect(state.values?.notes).toBe("");
     const after = await db().select({ n: sql<number>`count(*)::int` }).from(machines);
@@ -51,6 +53,21 @@ describe("machine form", () => {
     const dup = await machineActions.createMachineAction(initialFormState, formData({ ...m, name: m.name.toUpperCase() }));
     expect(dup.status).toBe(409);
     expect(dup.fieldErrors?.name?.[0]).toMatch(/already exists/);
+  });
+
+  it("saves the dialect and the arc tolerance; a blank tolerance is the dialect's default", async () => {
+    const m = machineFields();
+    const res = await machinesRoute.POST(jsonRequest("POST", m), undefined);
+    const { machine } = (await res.json()) as { machine: { id: number; dialect: string; arcTolerance: number | null } };
+    expect(machine).toMatchObject({ dialect: "common", arcTolerance: null });
+    const state = await machineActions.updateMachineAction(machine.id, initialFormState, formData({ ...m, dialect: "strict-ngc", arcTolerance: 0.01 }));
+    expect(state.status).toBe(200);
+    const row = async () =>
+      (await db().select({ dialect: machines.dialect, arcTolerance: machines.arcTolerance }).from(machines).where(eq(machines.id, machine.id)))[0];
+    expect(await row()).toEqual({ dialect: "strict-ngc", arcTolerance: 0.01 });
+    const blank = await machineActions.updateMachineAction(machine.id, initialFormState, formData({ ...m, dialect: "strict-ngc", arcTolerance: "" }));
+    expect(blank.status).toBe(200);
+    expect(await row()).toEqual({ dialect: "strict-ngc", arcTolerance: null });
   });
 
   it("an edit records what changed in the audit record", async () => {

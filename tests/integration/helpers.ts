@@ -91,6 +91,7 @@ export function machineFields(overrides: Record<string, string | number | boolea
     hMustEqualT: true,
     safeZ: 5,
     workOffsetCount: 6,
+    dialect: "common",
     ...overrides,
   };
 }

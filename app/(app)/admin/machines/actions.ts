@@ -9,7 +9,7 @@ import { formBoolean, machineSchema } from "@/lib/validation";
 
 const NUMBER_FIELDS = [
   "travelXMin", "travelXMax", "travelYMin", "travelYMax", "travelZMin", "travelZMax",
-  "rapidRate", "maxFeed", "maxSpindle", "acceleration", "toolChangeSeconds", "safeZ", "workOffsetCount",
+  "rapidRate", "maxFeed", "maxSpindle", "acceleration", "toolChangeSeconds", "safeZ", "workOffsetCount", "arcTolerance",
 ] as const;
 
 function machineFromForm(fd: FormData) {
@@ -20,6 +20,7 @@ function machineFromForm(fd: FormData) {
     manualToolChange: formBoolean(fd, "manualToolChange"),
     spindleProgramControlled: formBoolean(fd, "spindleProgramControlled"),
     hMustEqualT: formBoolean(fd, "hMustEqualT"),
+    dialect: fd.get("dialect") ?? undefined,
   };
   for (const f of NUMBER_FIELDS) {
     const v = fd.get(f);
