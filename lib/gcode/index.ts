@@ -16,3 +16,4 @@ export {
 } from "./toolpath";
 export { arcFromCenter, arcFromRadius, arcExtremes, arcLength, chordCount } from "./arc";
 export { HINTS } from "./rules";
+export { ENGINE_VERSION } from "./version";
