@@ -1,7 +1,7 @@
 import type { NextConfig } from "next";
 
 const nextConfig: NextConfig = {
-  serverExternalPackages: ["pg", "@node-rs/argon2"],
+  serverExternalPackages: ["pg", "@node-rs/argon2", "pg-boss", "nodemailer", "busboy"],
   poweredByHeader: false,
   turbopack: {
     resolveAlias: {

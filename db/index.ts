@@ -1,27 +1,22 @@
 import "server-only";
-import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
-import { Pool } from "pg";
+import type { Pool } from "pg";
 import { env } from "@/lib/env";
+import { createDb, type Db, type Tx } from "./client";
 import * as schema from "./schema";
 
-export type Db = NodePgDatabase<typeof schema>;
+export type { Db, Tx };
 
-const globalForDb = globalThis as unknown as { cyclegatePool?: Pool; cyclegateDb?: Db };
+const globalForDb = globalThis as unknown as { cyclegateDb?: Db };
 
-/** The one pool per process; cached on globalThis so dev reloads don't open new ones. */
-export function pool(): Pool {
-  globalForDb.cyclegatePool ??= new Pool({
-    connectionString: env().databaseUrl,
-    max: 10,
-    connectionTimeoutMillis: 5_000,
-    idleTimeoutMillis: 30_000,
-  });
-  return globalForDb.cyclegatePool;
+/** The one Drizzle client per process; cached on globalThis so dev reloads don't open new pools. */
+export function db(): Db {
+  globalForDb.cyclegateDb ??= createDb(env().databaseUrl, 10);
+  return globalForDb.cyclegateDb;
 }
 
-export function db(): Db {
-  globalForDb.cyclegateDb ??= drizzle(pool(), { schema });
-  return globalForDb.cyclegateDb;
+/** The one pool per process (the one db() uses). */
+export function pool(): Pool {
+  return db().$client;
 }
 
 export { schema };

@@ -1,8 +1,7 @@
 import "server-only";
 import { db, type Db } from "@/db";
+import type { Tx } from "@/db/client";
 import { auditEvents } from "@/db/schema";
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export interface AuditInput {
   actor: { id: number; email: string } | null;

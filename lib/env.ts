@@ -28,6 +28,7 @@ const envSchema = z.object({
   JOB_MAINTENANCE_SECONDS: optional(z.coerce.number().int().min(1).max(3600)),
   MAIL_RETRIES: optional(z.coerce.number().int().min(0).max(50)),
   CYCLEGATE_WORKER: optional(boolish),
+  CYCLEGATE_ANALYSIS_DELAY_MS: optional(z.coerce.number().int().min(0).max(600_000)),
 });
 
 export type Env = {
@@ -58,6 +59,8 @@ export type Env = {
   mailRetries: number;
   /** Run the analysis and mail worker inside the app process (npm start); false leaves it to npm run worker. */
   inProcessWorker: boolean;
+  /** Fault injection for tests only: every analysis waits this long first (so a test can kill a worker mid-job). */
+  analysisDelayMs: number;
 };
 
 function readSecretFile(dataDir: string): string | undefined {
@@ -111,6 +114,7 @@ export function loadEnv(
     jobMaintenanceSeconds: e.JOB_MAINTENANCE_SECONDS ?? 30,
     mailRetries: e.MAIL_RETRIES ?? 8,
     inProcessWorker: e.CYCLEGATE_WORKER ?? true,
+    analysisDelayMs: e.CYCLEGATE_ANALYSIS_DELAY_MS ?? 0,
   };
 }
 
