@@ -4,6 +4,7 @@ import { z } from "zod";
 import { db } from "@/db";
 import { auditEvents } from "@/db/schema";
 import { authorize } from "@/lib/auth/session";
+import { likeEscape } from "@/lib/dal/sql";
 
 export const AUDIT_PAGE_SIZE = 50;
 
@@ -40,9 +41,9 @@ export interface AuditRow {
 export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number }> {
   await authorize("readAudit");
   const where: SQL[] = [];
-  const escape = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
-  if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${escape(filter.actor)}%`));
-  if (filter.action) where.push(ilike(auditEvents.action, `${escape(filter.action)}%`));
+
+  if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${likeEscape(filter.actor)}%`));
+  if (filter.action) where.push(ilike(auditEvents.action, `${likeEscape(filter.action)}%`));
   if (filter.objectType) where.push(eq(auditEvents.objectType, filter.objectType));
   if (filter.objectId) where.push(eq(auditEvents.objectId, filter.objectId));
   if (filter.from) where.push(gte(auditEvents.at, new Date(`${filter.from}T00:00:00Z`)));
