@@ -14,7 +14,7 @@ import { machineFields, params } from "./helpers";
 export const sha256 = (b: Uint8Array | string) => createHash("sha256").update(b).digest("hex");
 
 /** A small clean program; `tag` makes its bytes (and hash) unique. */
-export function ncProgram(tag = randomUUID(), extra = ""): string {
+export function ncProgram(tag: string = randomUUID(), extra = ""): string {
   return [
     "%",
     `O1001 (TEST ${tag})`,
