@@ -1,7 +1,7 @@
 import { createHash, randomUUID } from "node:crypto";
 import { readdir, readFile } from "node:fs/promises";
 import path from "node:path";
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { machines, revisionAnalyses } from "@/db/schema";
 import * as uploadRoute from "@/app/api/programs/[id]/revisions/route";
@@ -115,4 +115,64 @@ export async function readMails(): Promise<{ file: string; text: string }[]> {
   const dir = env().mailDir;
   const files = (await readdir(dir).catch(() => [] as string[])).filter((f) => f.endsWith(".eml")).sort();
   return Promise.all(files.map(async (f) => ({ file: f, text: await readFile(path.join(dir, f), "utf8") })));
+}
+
+/**
+ * A revision straight into the database (no worker): its bytes, the row in `status`, and a finished analysis with
+ * no findings. For tests about who may do what, not about the analysis.
+ */
+export async function insertRevision(opts: { programId: number; uploadedBy: number; status?: "draft" | "submitted" | "released"; text?: string }) {
+  const { programFiles, programs: programsTable, revisions: revisionsTable } = await import("@/db/schema");
+  const text = opts.text ?? ncProgram();
+  const bytes = Buffer.from(text);
+  const hash = sha256(bytes);
+  await db().insert(programFiles).values({ sha256: hash, size: bytes.length, bytes }).onConflictDoNothing();
+  return db().transaction(async (tx) => {
+    const [p] = await tx
+      .update(programsTable)
+      .set({ lastRevisionNumber: sql`${programsTable.lastRevisionNumber} + 1` })
+      .where(eq(programsTable.id, opts.programId))
+      .returning({ n: programsTable.lastRevisionNumber });
+    const [rev] = await tx
+      .insert(revisionsTable)
+      .values({
+        programId: opts.programId,
+        number: p!.n,
+        fileName: "fixture.nc",
+        sha256: hash,
+        size: bytes.length,
+        lineCount: 15,
+        uploadedBy: opts.uploadedBy,
+        status: opts.status ?? "draft",
+      })
+      .returning({ id: revisionsTable.id });
+    await tx.insert(revisionAnalyses).values({
+      revisionId: rev!.id,
+      state: "done",
+      engineVersion: 1,
+      errorCount: 0,
+      warningCount: 0,
+      infoCount: 0,
+      result: { findingCounts: [], findings: [], tools: [], workOffsets: [], units: "mm", lineCount: 15, toolOrder: "single", toolChangeCount: 0, bounds: {}, cuttingBounds: {}, time: { totalSeconds: 1, feedSeconds: 1, rapidSeconds: 0, dwellSeconds: 0, toolChangeSeconds: 0 } },
+    });
+    await tx.update(programsTable).set({ latestRevisionId: rev!.id }).where(eq(programsTable.id, opts.programId));
+    return rev!.id;
+  });
+}
+
+/** A part and a program straight into the database, created by `userId`. */
+export async function insertProgram(userId: number, machineId: number) {
+  const { parts: partsTable, programs: programsTable } = await import("@/db/schema");
+  const [part] = await db().insert(partsTable).values({ number: `FX-${randomUUID().slice(0, 8)}`, name: "Fixture part" }).returning({ id: partsTable.id });
+  const [program] = await db()
+    .insert(programsTable)
+    .values({ programNumber: `O${randomUUID().slice(0, 6)}`, title: "Fixture program", partId: part!.id, machineId, createdBy: userId })
+    .returning({ id: programsTable.id });
+  return program!.id;
+}
+
+/** A work offset value straight into the database. */
+export async function setFixtureOffset(machineId: number, code: string) {
+  const { machineWorkOffsets } = await import("@/db/schema");
+  await db().insert(machineWorkOffsets).values({ machineId, code, x: -1, y: -2, z: -3 }).onConflictDoNothing();
 }
