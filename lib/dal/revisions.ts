@@ -22,6 +22,7 @@ import { analysisDiff, type AnalysisDiff, type ComparableAnalysis } from "@/lib/
 import { lineDiff, type LineDiff } from "@/lib/compare/line-diff";
 import { decider, revisionSummaryColumns, toRevisionSummary, uploader, type RevisionSummary } from "@/lib/dal/views";
 import type { Severity } from "@/lib/gcode";
+import { putCachedFile } from "@/lib/file-cache";
 import { readFileBytes } from "@/lib/jobs/analysis";
 import { requestAnalysis } from "@/lib/jobs/queue";
 import type { ReceivedProgram } from "@/lib/upload";
@@ -85,6 +86,9 @@ export async function uploadRevision(programId: number, file: ReceivedProgram, m
   const ip = await requestIp();
   const id = await db().transaction(async (tx) => {
     await storeFile(tx, file);
+    // Before commit, so the in-process worker (woken by the commit) finds the bytes without reading them back.
+    // Right even if this transaction fails: the cache is keyed by the content's own hash.
+    putCachedFile(file.sha256, file.bytes);
     const [program] = await tx
       .select({ id: programs.id, last: programs.lastRevisionNumber })
       .from(programs)

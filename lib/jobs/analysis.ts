@@ -13,6 +13,7 @@ import {
   revisions,
   revisionTools,
 } from "../../db/schema";
+import { getCachedFile, putCachedFile } from "../file-cache";
 import { ENGINE_VERSION } from "../gcode/version";
 import { toMachineProfile } from "../machine-profile";
 import type { StoredAnalysis } from "./analyser";
@@ -24,8 +25,13 @@ export interface Analyse {
   analyse(bytes: Uint8Array, options: import("../gcode/types").AnalyzeOptions): Promise<StoredAnalysis>;
 }
 
-/** Reads a file's bytes in binary form (the default text form would double them as hex). */
+/**
+ * A file's bytes: from the in-memory cache when this process stored or read them lately, else from the database in
+ * binary form (the default text form would double them as hex).
+ */
 export async function readFileBytes(db: Db, sha256: string): Promise<Buffer | null> {
+  const cached = getCachedFile(sha256);
+  if (cached) return cached;
   // node-postgres supports `binary` on a query config (its types do not list it); its binary parser would turn
   // bytea into a string, so this query keeps every value as the raw Buffer.
   const config = {
@@ -35,7 +41,9 @@ export async function readFileBytes(db: Db, sha256: string): Promise<Buffer | nu
     types: { getTypeParser: () => (raw: Buffer) => raw },
   };
   const res = await db.$client.query<{ bytes: Buffer }>(config as import("pg").QueryConfig);
-  return res.rows[0]?.bytes ?? null;
+  const bytes = res.rows[0]?.bytes ?? null;
+  if (bytes) putCachedFile(sha256, bytes);
+  return bytes;
 }
 
 /**
