@@ -37,6 +37,20 @@ export interface AuditRow {
   ip: string | null;
 }
 
+/** The columns of an AuditRow (`at` still a Date: map rows with toAuditRow). */
+export const auditRowColumns = {
+  id: auditEvents.id,
+  at: auditEvents.at,
+  actorEmail: auditEvents.actorEmail,
+  action: auditEvents.action,
+  objectType: auditEvents.objectType,
+  objectId: auditEvents.objectId,
+  details: auditEvents.details,
+  ip: auditEvents.ip,
+};
+
+export const toAuditRow = (r: Omit<AuditRow, "at"> & { at: Date }): AuditRow => ({ ...r, at: r.at.toISOString() });
+
 /** One page of events, newest first; dates are whole UTC days, `to` included. */
 export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number }> {
   await authorize("readAudit");
@@ -51,16 +65,7 @@ export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: Audi
   const cond = where.length ? and(...where) : undefined;
   const [rows, [totalRow]] = await Promise.all([
     db()
-      .select({
-        id: auditEvents.id,
-        at: auditEvents.at,
-        actorEmail: auditEvents.actorEmail,
-        action: auditEvents.action,
-        objectType: auditEvents.objectType,
-        objectId: auditEvents.objectId,
-        details: auditEvents.details,
-        ip: auditEvents.ip,
-      })
+      .select(auditRowColumns)
       .from(auditEvents)
       .where(cond)
       .orderBy(desc(auditEvents.at), desc(auditEvents.id))
@@ -69,7 +74,7 @@ export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: Audi
     db().select({ n: count() }).from(auditEvents).where(cond),
   ]);
   return {
-    rows: rows.map((r) => ({ ...r, at: r.at.toISOString() })),
+    rows: rows.map(toAuditRow),
     total: totalRow?.n ?? 0,
     page: filter.page,
     pageSize: AUDIT_PAGE_SIZE,
