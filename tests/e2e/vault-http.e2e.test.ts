@@ -47,10 +47,11 @@ function postOnNewConnection(pathName: string, body: Buffer, headers: Record<str
 }
 
 async function counts() {
-  const r = await database.query<{ revisions: string; files: string }>(
-    "select (select count(*) from revisions) as revisions, (select count(*) from program_files) as files",
+  const r = await database.query<{ revisions: string; files: string; staged: string }>(
+    `select (select count(*) from revisions) as revisions, (select count(*) from program_files) as files,
+            (select count(*) from program_file_uploads) as staged`,
   );
-  return { revisions: Number(r.rows[0]!.revisions), files: Number(r.rows[0]!.files) };
+  return { revisions: Number(r.rows[0]!.revisions), files: Number(r.rows[0]!.files), staged: Number(r.rows[0]!.staged) };
 }
 
 beforeAll(async () => {
