@@ -5,7 +5,7 @@ import { ACTION_BODY_LIMIT_BYTES } from "./lib/request-gate";
 // answer; see DEVELOPERS.md, "Security headers".
 
 const nextConfig: NextConfig = {
-  serverExternalPackages: ["pg", "@node-rs/argon2", "rate-limiter-flexible"],
+  serverExternalPackages: ["pg", "@node-rs/argon2", "rate-limiter-flexible", "pg-boss", "nodemailer", "busboy", "pg-copy-streams"],
   poweredByHeader: false,
   turbopack: {
     resolveAlias: {

@@ -1,26 +1,21 @@
 import "server-only";
-import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
-import { Pool } from "pg";
+import type { Pool } from "pg";
 import { env } from "@/lib/env";
+import { createDb, createPool, type Db, type Tx } from "./client";
 import * as schema from "./schema";
 
-export type Db = NodePgDatabase<typeof schema>;
+export type { Db, Tx };
 
 const globalForDb = globalThis as unknown as { cyclegatePool?: Pool; cyclegateDb?: Db };
 
 /** The one pool per process; cached on globalThis so dev reloads don't open new ones. */
 export function pool(): Pool {
-  globalForDb.cyclegatePool ??= new Pool({
-    connectionString: env().databaseUrl,
-    max: 10,
-    connectionTimeoutMillis: 5_000,
-    idleTimeoutMillis: 30_000,
-  });
+  globalForDb.cyclegatePool ??= createPool(env().databaseUrl, 10);
   return globalForDb.cyclegatePool;
 }
 
 export function db(): Db {
-  globalForDb.cyclegateDb ??= drizzle(pool(), { schema });
+  globalForDb.cyclegateDb ??= createDb(pool());
   return globalForDb.cyclegateDb;
 }
 

@@ -1,9 +1,8 @@
 import "server-only";
 import { desc, gt, sql } from "drizzle-orm";
 import { db, type Db } from "@/db";
+import type { Tx } from "@/db/client";
 import { auditEvents, auditRollups } from "@/db/schema";
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export interface AuditInput {
   actor: { id: number; email: string } | null;

@@ -21,6 +21,14 @@ const envSchema = z.object({
   CYCLEGATE_DEMO_PASSWORD: optional(z.string().min(8)),
   MAIL_DIR: optional(z.string().min(1)),
   TRUST_PROXY: optional(boolish),
+  UPLOAD_MAX_BYTES: optional(z.coerce.number().int().min(1024).max(1024 * 1024 * 1024)),
+  ANALYSIS_TIMEOUT_SECONDS: optional(z.coerce.number().int().min(1).max(6 * 60 * 60)),
+  ANALYSIS_RETRIES: optional(z.coerce.number().int().min(0).max(20)),
+  JOB_POLL_SECONDS: optional(z.coerce.number().min(0.5).max(600)),
+  JOB_MAINTENANCE_SECONDS: optional(z.coerce.number().int().min(1).max(3600)),
+  MAIL_RETRIES: optional(z.coerce.number().int().min(0).max(50)),
+  CYCLEGATE_WORKER: optional(boolish),
+  CYCLEGATE_ANALYSIS_DELAY_MS: optional(z.coerce.number().int().min(0).max(600_000)),
 });
 
 export type Env = {
@@ -37,6 +45,22 @@ export type Env = {
   mailDir: string;
   /** Keep X-Forwarded-* from the client: only behind a reverse proxy that sets them. */
   trustProxy: boolean;
+  /** Largest program upload in bytes (413 above it). */
+  uploadMaxBytes: number;
+  /** An analysis job running longer than this is failed (and retried); also how long a killed worker's job waits. */
+  analysisTimeoutSeconds: number;
+  /** Retries of a failed analysis job before the revision is marked failed. */
+  analysisRetries: number;
+  /** How often an idle worker looks for jobs (workers are also woken right after an upload commits). */
+  jobPollSeconds: number;
+  /** How often the job queue looks for jobs of workers that died. */
+  jobMaintenanceSeconds: number;
+  /** Retries of an outbox message before it is marked failed. */
+  mailRetries: number;
+  /** Run the analysis and mail worker inside the app process (npm start); false leaves it to npm run worker. */
+  inProcessWorker: boolean;
+  /** Fault injection for tests only: every analysis waits this long first (so a test can kill a worker mid-job). */
+  analysisDelayMs: number;
 };
 
 function readSecretFile(dataDir: string): string | undefined {
@@ -83,6 +107,14 @@ export function loadEnv(
     demoPassword: e.CYCLEGATE_DEMO_PASSWORD ?? "cyclegate-demo",
     mailDir: e.MAIL_DIR ?? path.join(dataDir, "mail"),
     trustProxy: e.TRUST_PROXY ?? false,
+    uploadMaxBytes: e.UPLOAD_MAX_BYTES ?? 50 * 1024 * 1024,
+    analysisTimeoutSeconds: e.ANALYSIS_TIMEOUT_SECONDS ?? 600,
+    analysisRetries: e.ANALYSIS_RETRIES ?? 2,
+    jobPollSeconds: e.JOB_POLL_SECONDS ?? 2,
+    jobMaintenanceSeconds: e.JOB_MAINTENANCE_SECONDS ?? 30,
+    mailRetries: e.MAIL_RETRIES ?? 8,
+    inProcessWorker: e.CYCLEGATE_WORKER ?? true,
+    analysisDelayMs: e.CYCLEGATE_ANALYSIS_DELAY_MS ?? 0,
   };
 }
 

@@ -1,6 +1,7 @@
 import "server-only";
 import { NextResponse } from "next/server";
 import { z } from "zod";
+import { runAsApiRequest } from "@/lib/auth/api-context";
 import { AuthError, RequestError } from "@/lib/auth/errors";
 import { formatBytes } from "@/lib/request-gate";
 import { positiveIdFromText } from "@/lib/validation";
@@ -23,15 +24,19 @@ export function errorResponse(e: unknown): NextResponse {
 
 type Handler<C> = (req: Request, ctx: C) => Promise<Response>;
 
-/** Wraps a route handler so every failure becomes a JSON error, never a stack trace. */
+/**
+ * Wraps a route handler so every failure becomes a JSON error, never a stack trace. Inside it the session lookup
+ * also accepts an API token (`Authorization: Bearer ...`); pages and server actions do not.
+ */
 export function route<C>(handler: Handler<C>): Handler<C> {
-  return async (req, ctx) => {
-    try {
-      return await handler(req, ctx);
-    } catch (e) {
-      return errorResponse(e);
-    }
-  };
+  return (req, ctx) =>
+    runAsApiRequest(req, async () => {
+      try {
+        return await handler(req, ctx);
+      } catch (e) {
+        return errorResponse(e);
+      }
+    });
 }
 
 /** The largest JSON body a route reads by default. */

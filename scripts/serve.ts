@@ -8,12 +8,16 @@
  *    the request's Content-Security-Policy header;
  *  - refuses, with a JSON 4xx, what Next would answer with a 500 (lib/request-gate.ts): methods
  *    the app does not serve and oversized server-action bodies.
+ *
+ * The same process also runs the background worker (analysis jobs, mail outbox; lib/jobs/worker.ts) unless
+ * CYCLEGATE_WORKER=false; `npm run worker` starts more of them against the same database.
  */
 import { randomBytes } from "node:crypto";
 import { createServer } from "node:http";
 import path from "node:path";
 import next from "next";
 import { loadEnv } from "../lib/env";
+import { startWorker, type RunningWorker } from "../lib/jobs/worker";
 import { gateRequest } from "../lib/request-gate";
 import { contentSecurityPolicy, securityHeaders } from "../lib/security-headers";
 
@@ -29,6 +33,11 @@ const app = next({ dev, dir: path.resolve(import.meta.dirname, ".."), hostname, 
 const handle = app.getRequestHandler();
 
 await app.prepare();
+let worker: RunningWorker | null = null;
+if (env.inProcessWorker) {
+  worker = await startWorker({ env, inAppProcess: true });
+  console.log("background worker running in this process (analysis jobs, mail)");
+}
 const server = createServer((req, res) => {
   if (!env.trustProxy) for (const h of FORWARDING_HEADERS) delete req.headers[h];
   const policy = { nonce: randomBytes(18).toString("base64"), dev, https };
@@ -58,9 +67,11 @@ server.listen(env.port, hostname, () => {
 });
 
 const stop = () => {
-  server.close(() => process.exit(0));
+  // The worker hands back a job it cannot finish in time; the queue gives it to another worker.
+  const workerStopped = worker?.stop().catch(() => undefined) ?? Promise.resolve();
+  server.close(() => void workerStopped.then(() => process.exit(0)));
   // Keep-alive sockets would hold close() open; don't wait for them.
-  setTimeout(() => process.exit(0), 2_000).unref();
+  setTimeout(() => process.exit(0), 12_000).unref();
   server.closeIdleConnections();
 };
 process.on("SIGTERM", stop);

@@ -13,6 +13,21 @@ export const PERMISSIONS = {
   manageMachines: ["admin"],
   manageUsers: ["admin"],
   readAudit: ["admin", "lead"],
+  /** Parts, programs, revisions, analyses, signatures, downloads, compare, a program's audit events. */
+  readPrograms: ["admin", "lead", "programmer", "operator"],
+  /** Create and edit parts and programs, upload revisions, submit them for review. */
+  writePrograms: ["programmer"],
+  /** Release or reject a submitted revision (never one's own upload). */
+  reviewRevisions: ["lead"],
+  /** Delete a draft: the uploader (a programmer) or an admin; the DAL checks the ownership. */
+  deleteDrafts: ["programmer", "admin"],
+  /** Create, list and revoke one's own API tokens. */
+  manageOwnTokens: ["programmer"],
+  /** The mail outbox and each message's state. */
+  readOutbox: ["admin"],
+  /** Work offset values set at the machines. */
+  readWorkOffsets: ["admin", "lead", "programmer", "operator"],
+  setWorkOffsets: ["admin", "lead", "operator"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

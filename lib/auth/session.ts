@@ -7,8 +7,10 @@ import { db } from "@/db";
 import { sessions, users, type Role } from "@/db/schema";
 import { env } from "@/lib/env";
 import { recordRepeatedEvent } from "@/lib/audit";
+import { apiBearerToken } from "./api-context";
 import { AuthError } from "./errors";
 import { can, type Permission } from "./roles";
+import { userForToken } from "./tokens";
 
 export const SESSION_COOKIE = "cg_session";
 /** Signed out after this much inactivity. */
@@ -29,7 +31,10 @@ export interface CurrentUser {
   email: string;
   name: string;
   role: Role;
+  /** The session row's id, or "token:<id>" when the caller sent an API token. */
   sessionId: string;
+  /** How the caller proved who they are. */
+  via: "session" | "token";
 }
 
 export function cookieOptions() {
@@ -93,8 +98,15 @@ async function readSeal(): Promise<SealedSession | null> {
 /**
  * The signed-in user, checked against the database on every request: the session row must be live
  * (not revoked, not idle for 12 h, not past its lifetime) and the user enabled with the same session version.
+ * Inside a JSON route handler an `Authorization: Bearer` API token is accepted instead (and wins over a cookie);
+ * an unknown or revoked token means signed out.
  */
 export const getCurrentUser = cache(async (): Promise<CurrentUser | null> => {
+  const bearer = apiBearerToken();
+  if (bearer !== null) {
+    const u = await userForToken(bearer, await requestIp());
+    return u ? { id: u.id, email: u.email, name: u.name, role: u.role, sessionId: `token:${u.tokenId}`, via: "token" } : null;
+  }
   const seal = await readSeal();
   if (!seal) return null;
   const idleCutoff = new Date(Date.now() - IDLE_TIMEOUT_SECONDS * 1000);
@@ -125,7 +137,7 @@ export const getCurrentUser = cache(async (): Promise<CurrentUser | null> => {
   if (Date.now() - row.lastSeenAt.getTime() > TOUCH_INTERVAL_SECONDS * 1000) {
     await db().update(sessions).set({ lastSeenAt: sql`now()` }).where(eq(sessions.id, seal.sid));
   }
-  return { id: row.id, email: row.email, name: row.name, role: row.role, sessionId: seal.sid };
+  return { id: row.id, email: row.email, name: row.name, role: row.role, sessionId: seal.sid, via: "session" };
 });
 
 /** Revokes the caller's session row and clears the cookie. */

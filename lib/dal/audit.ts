@@ -5,6 +5,7 @@ import { db } from "@/db";
 import { auditEvents } from "@/db/schema";
 import { flushAuditRollups, openAuditRollups, type OpenRollup } from "@/lib/audit";
 import { authorize } from "@/lib/auth/session";
+import { likeEscape } from "@/lib/dal/sql";
 import { calendarDate, decimalNumber, singleLineText } from "@/lib/validation";
 
 export const AUDIT_PAGE_SIZE = 50;
@@ -40,6 +41,20 @@ export interface AuditRow {
   ip: string | null;
 }
 
+/** The columns of an AuditRow (`at` still a Date: map rows with toAuditRow). */
+export const auditRowColumns = {
+  id: auditEvents.id,
+  at: auditEvents.at,
+  actorEmail: auditEvents.actorEmail,
+  action: auditEvents.action,
+  objectType: auditEvents.objectType,
+  objectId: auditEvents.objectId,
+  details: auditEvents.details,
+  ip: auditEvents.ip,
+};
+
+export const toAuditRow = (r: Omit<AuditRow, "at"> & { at: Date }): AuditRow => ({ ...r, at: r.at.toISOString() });
+
 /**
  * One page of events, newest first; dates are whole UTC days, `to` included. Closed roll-up windows
  * are written first; `counting` lists the open ones (repeats counted, summary not yet written).
@@ -50,9 +65,9 @@ export async function listAuditEvents(
   await authorize("readAudit");
   await flushAuditRollups();
   const where: SQL[] = [];
-  const escape = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
-  if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${escape(filter.actor)}%`));
-  if (filter.action) where.push(ilike(auditEvents.action, `${escape(filter.action)}%`));
+
+  if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${likeEscape(filter.actor)}%`));
+  if (filter.action) where.push(ilike(auditEvents.action, `${likeEscape(filter.action)}%`));
   if (filter.objectType) where.push(eq(auditEvents.objectType, filter.objectType));
   if (filter.objectId) where.push(eq(auditEvents.objectId, filter.objectId));
   if (filter.from) where.push(gte(auditEvents.at, new Date(`${filter.from}T00:00:00Z`)));
@@ -60,16 +75,7 @@ export async function listAuditEvents(
   const cond = where.length ? and(...where) : undefined;
   const [rows, [totalRow], counting] = await Promise.all([
     db()
-      .select({
-        id: auditEvents.id,
-        at: auditEvents.at,
-        actorEmail: auditEvents.actorEmail,
-        action: auditEvents.action,
-        objectType: auditEvents.objectType,
-        objectId: auditEvents.objectId,
-        details: auditEvents.details,
-        ip: auditEvents.ip,
-      })
+      .select(auditRowColumns)
       .from(auditEvents)
       .where(cond)
       .orderBy(desc(auditEvents.at), desc(auditEvents.id))
@@ -79,7 +85,7 @@ export async function listAuditEvents(
     openAuditRollups(),
   ]);
   return {
-    rows: rows.map((r) => ({ ...r, at: r.at.toISOString() })),
+    rows: rows.map(toAuditRow),
     total: totalRow?.n ?? 0,
     page: filter.page,
     pageSize: AUDIT_PAGE_SIZE,
