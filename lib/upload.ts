@@ -4,7 +4,7 @@ import { Readable } from "node:stream";
 import busboy from "busboy";
 import { RequestError } from "@/lib/auth/errors";
 import { checkTextProgram } from "@/lib/gcode";
-import { cleanFileName } from "@/lib/file-name";
+import { cleanFileName, countLines } from "@/lib/program-file";
 
 /** A program file received whole, hashed while it streamed in. */
 export interface ReceivedProgram {
@@ -23,22 +23,6 @@ const RAW_TYPES = /^(text\/plain|application\/octet-stream|application\/x-www-fo
 
 const tooLarge = (max: number) =>
   new RequestError(413, `The file is larger than the limit of ${max} bytes (${(max / 1024 / 1024).toFixed(0)} MiB).`);
-
-/** Counts lines the engine's way (CR, LF and CRLF each end one; a last line without an ending counts). */
-export function countLines(bytes: Uint8Array): number {
-  let n = 0;
-  const len = bytes.length;
-  for (let i = 0; i < len; i++) {
-    const c = bytes[i]!;
-    if (c === 10) n++;
-    else if (c === 13) {
-      n++;
-      if (bytes[i + 1] === 10) i++;
-    }
-  }
-  const last = bytes[len - 1];
-  return last === undefined || last === 10 || last === 13 ? n : n + 1;
-}
 
 /** Maps checkTextProgram's refusal to a status: NUL or binary bytes 415, everything else (bad UTF-8) 422. */
 export function textRefusal(bytes: Uint8Array): RequestError | null {

@@ -1,11 +1,11 @@
 import { hash } from "@node-rs/argon2";
 import { sql } from "drizzle-orm";
-import { drizzle } from "drizzle-orm/node-postgres";
-import { Pool } from "pg";
+import { createDb } from "../db/client";
 import { DEMO_MACHINES, DEMO_SHOP, DEMO_USERS } from "../db/demo-data";
 import { appState, auditEvents, machines, users } from "../db/schema";
 import { ARGON2_OPTIONS } from "../lib/auth/argon2-options";
 import { loadEnv } from "../lib/env";
+import { seedVault } from "./seed-vault";
 
 const SEED_KEY = "demo-seeded";
 
@@ -15,8 +15,7 @@ const SEED_KEY = "demo-seeded";
  */
 async function main() {
   const env = loadEnv(process.env, { needSecret: false });
-  const pool = new Pool({ connectionString: env.databaseUrl, max: 1 });
-  const db = drizzle(pool);
+  const db = createDb(env.databaseUrl, 1);
   try {
     const passwordHash = await hash(env.demoPassword, ARGON2_OPTIONS);
     const seeded = await db.transaction(async (tx) => {
@@ -38,8 +37,10 @@ async function main() {
       return true;
     });
     console.log(seeded ? `demo data seeded (${DEMO_SHOP})` : "demo data already present; left as it is");
+    // Its own markers: a database seeded before the program vault existed gets the demo programs once too.
+    console.log(await seedVault(db));
   } finally {
-    await pool.end();
+    await db.$client.end();
   }
 }
 

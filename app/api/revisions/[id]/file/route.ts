@@ -1,7 +1,7 @@
 import { RequestError } from "@/lib/auth/errors";
 import { authorize } from "@/lib/auth/session";
 import { readRevisionFile } from "@/lib/dal/revisions";
-import { attachmentDisposition } from "@/lib/file-name";
+import { attachmentDisposition } from "@/lib/program-file";
 import { parseId, route } from "@/lib/http";
 
 export const dynamic = "force-dynamic";

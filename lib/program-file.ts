@@ -1,3 +1,21 @@
+/** Helpers for stored program files (pure: the server, scripts and the browser may use them). */
+
+/** Counts lines the engine's way (CR, LF and CRLF each end one; a last line without an ending counts). */
+export function countLines(bytes: Uint8Array): number {
+  let n = 0;
+  const len = bytes.length;
+  for (let i = 0; i < len; i++) {
+    const c = bytes[i]!;
+    if (c === 10) n++;
+    else if (c === 13) {
+      n++;
+      if (bytes[i + 1] === 10) i++;
+    }
+  }
+  const last = bytes[len - 1];
+  return last === undefined || last === 10 || last === 13 ? n : n + 1;
+}
+
 /**
  * A file name as a display label only: the last path segment (either slash), no control, format or bidi-override
  * characters, no leading dots, spaces collapsed, at most MAX_FILE_NAME characters (the extension kept). Never
