@@ -7,13 +7,15 @@ import { signOutAction } from "@/app/(app)/actions";
 export function AppHeader({ user }: { user: { name: string; role: Role } }) {
   const links = [
     { href: "/", label: "Overview", show: true },
+    { href: "/programs", label: "Programs", show: can(user.role, "readPrograms") },
     { href: "/machines", label: "Machines", show: can(user.role, "readMachines") },
     { href: "/admin/users", label: "Users", show: can(user.role, "manageUsers") },
     { href: "/audit", label: "Audit record", show: can(user.role, "readAudit") },
+    { href: "/admin/outbox", label: "Mail outbox", show: can(user.role, "readOutbox") },
   ];
   return (
     <header className="border-b border-rule bg-ink text-white">
-      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
+      <div className="mx-auto flex max-w-7xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
         <Link href="/" className="text-lg font-bold tracking-tight">
           Cycle<span className="text-sky-300">gate</span>
         </Link>

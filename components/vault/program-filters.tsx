@@ -69,7 +69,7 @@ export function ProgramFilters({ query, machines }: { query: ProgramListQuery; m
       </label>
       {query.sort !== "updated" && <input type="hidden" name="sort" value={query.sort} />}
       {query.dir && <input type="hidden" name="dir" value={query.dir} />}
-      <div className="flex items-end gap-2 sm:col-span-2 lg:col-span-2">
+      <div className="flex items-end gap-2 sm:col-span-2 lg:col-span-3">
         <button type="submit" className="min-h-10 rounded-md bg-brand px-4 py-2 text-sm font-semibold text-white hover:bg-brand-strong">
           Apply filters
         </button>

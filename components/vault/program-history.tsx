@@ -89,7 +89,7 @@ export function ProgramEvents({ events }: { events: AuditRow[] }) {
   if (events.length === 0) return <p className="text-sm text-ink-soft">No events yet.</p>;
   return (
     <div className="overflow-x-auto">
-      <table className="w-full text-left text-sm tabular-nums" data-testid="program-events">
+      <table className="w-full text-left text-sm" data-testid="program-events">
         <thead className="border-b border-rule text-xs uppercase tracking-wide text-ink-soft">
           <tr>
             <th className="py-2 pr-3">When</th>
@@ -101,7 +101,7 @@ export function ProgramEvents({ events }: { events: AuditRow[] }) {
         <tbody>
           {events.map((e) => (
             <tr key={e.id} className="border-b border-rule/60 last:border-0" data-action={e.action}>
-              <td className="py-1.5 pr-3 whitespace-nowrap">{formatWhen(e.at)}</td>
+              <td className="py-1.5 pr-3 whitespace-nowrap tabular-nums">{formatWhen(e.at)}</td>
               <td className="py-1.5 pr-3">{e.actorEmail ?? "—"}</td>
               <td className="py-1.5 pr-3">{describeEvent(e)}</td>
               <td className="py-1.5 font-mono text-xs text-ink-soft">{e.ip ?? ""}</td>
