@@ -19,6 +19,8 @@ export function proxy(request: NextRequest) {
   return NextResponse.next({ request: { headers: requestHeaders } });
 }
 
+// `api/` stays out of the matcher: besides answering 401 JSON, upload routes must never pass through the proxy,
+// because Next buffers a proxied request body up to 10 MB and then hands it on cut short without an error.
 export const config = {
   matcher: ["/((?!api/|_next/|favicon.ico|fonts/|.*\\.(?:png|svg|ico|woff2)$).*)"],
 };

@@ -112,6 +112,16 @@ async function readMultipart(req: Request, max: number): Promise<{ bytes: Buffer
  * percent-encoded), `?name=` or the multipart filename, and is cleaned to a display label.
  */
 export async function receiveProgram(req: Request, max: number): Promise<ReceivedProgram> {
+  try {
+    return await receive(req, max);
+  } catch (e) {
+    if (e instanceof RequestError) throw e;
+    // The client went away mid-body (ECONNRESET, "aborted"): nothing was stored; nobody is left to read the answer.
+    throw new RequestError(400, "The upload was interrupted before all its bytes arrived; nothing was stored.");
+  }
+}
+
+async function receive(req: Request, max: number): Promise<ReceivedProgram> {
   const type = req.headers.get("content-type") ?? "application/octet-stream";
   const declared = req.headers.get("content-length");
   const sha = expectedSha(req);

@@ -44,13 +44,20 @@ export class ThreadAnalyser {
   analyse(bytes: Uint8Array, options: AnalyzeOptions): Promise<StoredAnalysis> {
     const id = this.nextId++;
     const w = this.thread();
-    // Hand over the memory without a copy; a view on a bigger (pooled) buffer is copied first.
-    const own = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes : bytes.slice();
-    const buffer = own.buffer as ArrayBuffer;
+    // Hand over the memory without a copy when the bytes own their buffer; a view on a bigger or pooled buffer
+    // (which Node refuses to transfer) is copied first. Uint8Array's constructor copies; Buffer#slice would not.
+    const owns = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.byteLength > 4096;
+    const buffer = (owns ? bytes : new Uint8Array(bytes)).buffer as ArrayBuffer;
     return new Promise<StoredAnalysis>((resolve, reject) => {
       this.pending.set(id, { resolve, reject });
       w.ref();
-      w.postMessage({ id, bytes: buffer, options, delayMs: this.delayMs }, [buffer]);
+      try {
+        w.postMessage({ id, bytes: buffer, options, delayMs: this.delayMs }, [buffer]);
+      } catch {
+        // Some buffers cannot be transferred (Node marks pooled ones so): send a copy.
+        const copy = new Uint8Array(bytes).buffer as ArrayBuffer;
+        w.postMessage({ id, bytes: copy, options, delayMs: this.delayMs }, [copy]);
+      }
     }).finally(() => {
       if (this.pending.size === 0) this.worker?.unref();
     });

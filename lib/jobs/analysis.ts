@@ -26,8 +26,14 @@ export interface Analyse {
 
 /** Reads a file's bytes in binary form (the default text form would double them as hex). */
 export async function readFileBytes(db: Db, sha256: string): Promise<Buffer | null> {
-  // node-postgres supports `binary` on a query config; its types do not list it.
-  const config = { text: "select bytes from program_files where sha256 = $1", values: [sha256], binary: true };
+  // node-postgres supports `binary` on a query config (its types do not list it); its binary parser would turn
+  // bytea into a string, so this query keeps every value as the raw Buffer.
+  const config = {
+    text: "select bytes from program_files where sha256 = $1",
+    values: [sha256],
+    binary: true,
+    types: { getTypeParser: () => (raw: Buffer) => raw },
+  };
   const res = await db.$client.query<{ bytes: Buffer }>(config as import("pg").QueryConfig);
   return res.rows[0]?.bytes ?? null;
 }

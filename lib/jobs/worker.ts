@@ -97,9 +97,12 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
   let analysed = 0;
   const workOptions = { pollingIntervalSeconds: env.jobPollSeconds, batchSize: 1, includeMetadata: true } as const;
 
-  const analysisWorker = await boss.work<AnalysisJobData>(ANALYSIS_QUEUE, workOptions, async ([job]) => {
+  let analysisWorker = "";
+  analysisWorker = await boss.work<AnalysisJobData>(ANALYSIS_QUEUE, workOptions, async ([job]) => {
     if (!job) return;
     const { revisionId } = job.data;
+    // pg-boss waits out the polling interval after a job unless notified: go straight on to the next one.
+    boss.notifyWorker(analysisWorker);
     try {
       const outcome = await analyseRevision(db, revisionId, analyser);
       if (outcome === "done") analysed++;

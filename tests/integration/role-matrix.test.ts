@@ -14,8 +14,25 @@ import * as shellActions from "@/app/(app)/actions";
 import * as machineActions from "@/app/(app)/admin/machines/actions";
 import * as userActions from "@/app/(app)/admin/users/actions";
 import * as accountActions from "@/app/(app)/account/actions";
+import * as partsRoute from "@/app/api/parts/route";
+import * as programsRoute from "@/app/api/programs/route";
+import * as programRoute from "@/app/api/programs/[id]/route";
+import * as programEventsRoute from "@/app/api/programs/[id]/events/route";
+import * as programRevisionsRoute from "@/app/api/programs/[id]/revisions/route";
+import * as pushRoute from "@/app/api/revisions/route";
+import * as revisionRoute from "@/app/api/revisions/[id]/route";
+import * as revisionFileRoute from "@/app/api/revisions/[id]/file/route";
+import * as submitRoute from "@/app/api/revisions/[id]/submit/route";
+import * as releaseRoute from "@/app/api/revisions/[id]/release/route";
+import * as rejectRoute from "@/app/api/revisions/[id]/reject/route";
+import * as compareRoute from "@/app/api/revisions/[id]/compare/[other]/route";
+import * as tokensRoute from "@/app/api/tokens/route";
+import * as tokenRoute from "@/app/api/tokens/[id]/route";
+import * as outboxRoute from "@/app/api/outbox/route";
+import * as workOffsetsRoute from "@/app/api/machines/[id]/work-offsets/route";
 import { initialFormState } from "@/lib/form-state";
 import { actAs, actionStatus, formData, jsonRequest, machineFields, makeUser, params, TEST_PASSWORD } from "./helpers";
+import { insertProgram, insertRevision, ncProgram } from "./vault-helpers";
 
 type Caller = Role | "anonymous";
 const CALLERS: Caller[] = ["anonymous", "operator", "programmer", "lead", "admin"];
@@ -26,12 +43,26 @@ const SIGNED_IN: Row = [401, 200, 200, 200, 200];
 const ADMIN_ONLY: Row = [401, 403, 403, 403, 200];
 const LEAD_AND_ADMIN: Row = [401, 403, 403, 200, 200];
 const PUBLIC: Row = [200, 200, 200, 200, 200];
+const PROGRAMMER_ONLY: Row = [401, 403, 200, 403, 403];
+const LEAD_ONLY: Row = [401, 403, 403, 200, 403];
+/** Drafts: the uploader (a programmer; the fixture is the caller's own) or an admin. */
+const UPLOADER_OR_ADMIN: Row = [401, 403, 200, 403, 200];
+const AT_THE_MACHINE: Row = [401, 200, 403, 200, 200];
 
 interface Ctx {
   machineId: number;
   targetUserId: number;
-  me: { email: string; password: string } | null;
+  me: { id: number; email: string; password: string } | null;
+  programId: number;
+  revisionId: number;
+  otherRevisionId: number;
 }
+
+/** A fresh revision of the shared program in `status`, uploaded by the caller (or by the fixture owner). */
+const freshRevision = (c: Ctx, status: "draft" | "submitted", byCaller = true) =>
+  insertRevision({ programId: c.programId, uploadedBy: byCaller && c.me ? c.me.id : c.targetUserId, status });
+const rev = (id: number) => params({ id: String(id) });
+const textUpload = (url: string) => new Request(url, { method: "POST", headers: { "content-type": "text/plain" }, body: ncProgram() });
 
 interface Case {
   /** "GET /api/x" for route handlers, "action file#name" for server actions. */
@@ -92,6 +123,83 @@ const CASES: Case[] = [
     name: "PATCH /api/users/[id]",
     expect: ADMIN_ONLY,
     run: (c) => http(userRoute.PATCH(jsonRequest("PATCH", { displayName: "Renamed target" }), params({ id: String(c.targetUserId) }))),
+  },
+  { name: "GET /api/parts", expect: SIGNED_IN, run: () => http(partsRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/parts?q=a"), undefined)) },
+  {
+    name: "POST /api/parts",
+    expect: PROGRAMMER_ONLY,
+    run: () => http(partsRoute.POST(jsonRequest("POST", { number: `RM-${Math.random().toString(36).slice(2, 10)}`, name: "Matrix part" }), undefined)),
+  },
+  { name: "GET /api/programs", expect: SIGNED_IN, run: () => http(programsRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/programs?status=draft&sort=title"), undefined)) },
+  {
+    name: "POST /api/programs",
+    expect: PROGRAMMER_ONLY,
+    run: async (c) => {
+      const partRes = await partsRoute.POST(jsonRequest("POST", { number: `RP-${Math.random().toString(36).slice(2, 10)}`, name: "p" }), undefined);
+      const partId = partRes.status === 201 ? ((await partRes.json()) as { part: { id: number } }).part.id : 1;
+      return http(
+        programsRoute.POST(
+          jsonRequest("POST", { programNumber: `O${Math.floor(Math.random() * 1e6)}`, title: "Matrix program", partId, machineId: c.machineId }),
+          undefined,
+        ),
+      );
+    },
+  },
+  { name: "GET /api/programs/[id]", expect: SIGNED_IN, run: (c) => http(programRoute.GET(jsonRequest("GET"), rev(c.programId))) },
+  { name: "PATCH /api/programs/[id]", expect: PROGRAMMER_ONLY, run: (c) => http(programRoute.PATCH(jsonRequest("PATCH", { title: "Renamed" }), rev(c.programId))) },
+  { name: "GET /api/programs/[id]/events", expect: SIGNED_IN, run: (c) => http(programEventsRoute.GET(jsonRequest("GET"), rev(c.programId))) },
+  {
+    name: "POST /api/programs/[id]/revisions",
+    expect: PROGRAMMER_ONLY,
+    run: (c) => http(programRevisionsRoute.POST(textUpload(`http://localhost/api/programs/${c.programId}/revisions`), rev(c.programId))),
+  },
+  {
+    name: "POST /api/revisions",
+    expect: PROGRAMMER_ONLY,
+    run: (c) => http(pushRoute.POST(textUpload(`http://localhost/api/revisions?program=O4242&machine=${c.machineId}&part=RM-PUSH`), undefined)),
+  },
+  { name: "GET /api/revisions/[id]", expect: SIGNED_IN, run: (c) => http(revisionRoute.GET(jsonRequest("GET"), rev(c.revisionId))) },
+  { name: "DELETE /api/revisions/[id]", expect: UPLOADER_OR_ADMIN, run: async (c) => http(revisionRoute.DELETE(jsonRequest("DELETE"), rev(await freshRevision(c, "draft")))) },
+  { name: "GET /api/revisions/[id]/file", expect: SIGNED_IN, run: (c) => http(revisionFileRoute.GET(jsonRequest("GET"), rev(c.revisionId))) },
+  { name: "POST /api/revisions/[id]/submit", expect: PROGRAMMER_ONLY, run: async (c) => http(submitRoute.POST(jsonRequest("POST", { comment: "" }), rev(await freshRevision(c, "draft")))) },
+  {
+    name: "POST /api/revisions/[id]/release",
+    expect: LEAD_ONLY,
+    run: async (c) =>
+      http(releaseRoute.POST(jsonRequest("POST", { password: c.me?.password ?? TEST_PASSWORD, comment: "matrix" }), rev(await freshRevision(c, "submitted", false)))),
+  },
+  { name: "POST /api/revisions/[id]/reject", expect: LEAD_ONLY, run: async (c) => http(rejectRoute.POST(jsonRequest("POST", { comment: "matrix" }), rev(await freshRevision(c, "submitted", false)))) },
+  {
+    name: "GET /api/revisions/[id]/compare/[other]",
+    expect: SIGNED_IN,
+    run: (c) => http(compareRoute.GET(jsonRequest("GET"), params({ id: String(c.revisionId), other: String(c.otherRevisionId) }))),
+  },
+  { name: "GET /api/tokens", expect: PROGRAMMER_ONLY, run: () => http(tokensRoute.GET(jsonRequest("GET"), undefined)) },
+  { name: "POST /api/tokens", expect: PROGRAMMER_ONLY, run: () => http(tokensRoute.POST(jsonRequest("POST", { name: "matrix" }), undefined)) },
+  {
+    name: "DELETE /api/tokens/[id]",
+    expect: PROGRAMMER_ONLY,
+    run: async () => {
+      const created = await tokensRoute.POST(jsonRequest("POST", { name: "to revoke" }), undefined);
+      const id = created.status === 201 ? ((await created.json()) as { token: { id: number } }).token.id : 1;
+      return http(tokenRoute.DELETE(jsonRequest("DELETE"), rev(id)));
+    },
+  },
+  { name: "GET /api/outbox", expect: ADMIN_ONLY, run: () => http(outboxRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/outbox?state=sent"), undefined)) },
+  { name: "GET /api/machines/[id]/work-offsets", expect: SIGNED_IN, run: (c) => http(workOffsetsRoute.GET(jsonRequest("GET"), rev(c.machineId))) },
+  {
+    name: "PUT /api/machines/[id]/work-offsets",
+    expect: AT_THE_MACHINE,
+    run: (c) => http(workOffsetsRoute.PUT(jsonRequest("PUT", { code: "G55", x: -100.5, y: -50, z: -200 }), rev(c.machineId))),
+  },
+  {
+    name: "DELETE /api/machines/[id]/work-offsets",
+    expect: AT_THE_MACHINE,
+    run: async (c) => {
+      const { setFixtureOffset } = await import("./vault-helpers");
+      await setFixtureOffset(c.machineId, "G59");
+      return http(workOffsetsRoute.DELETE(jsonRequest("DELETE", undefined, "http://localhost/api?code=G59"), rev(c.machineId)));
+    },
   },
   { name: "GET /api/audit", expect: LEAD_AND_ADMIN, run: () => http(auditRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/audit?page=1"), undefined)) },
 
@@ -158,12 +266,19 @@ const CASES: Case[] = [
 
 let machineId = 0;
 let targetUserId = 0;
+let programId = 0;
+let revisionId = 0;
+let otherRevisionId = 0;
 
 beforeAll(async () => {
   await actAs("admin");
   const res = await machinesRoute.POST(jsonRequest("POST", machineFields()), undefined);
   machineId = ((await res.json()) as { machine: { id: number } }).machine.id;
   targetUserId = (await makeUser("operator")).id;
+  const owner = await makeUser("programmer");
+  programId = await insertProgram(owner.id, machineId);
+  revisionId = await insertRevision({ programId, uploadedBy: owner.id });
+  otherRevisionId = await insertRevision({ programId, uploadedBy: owner.id, text: ncProgram("other", "G1 X30") });
 });
 
 describe("role matrix: every route handler and server action x every caller", () => {
@@ -171,7 +286,7 @@ describe("role matrix: every route handler and server action x every caller", ()
     CALLERS.forEach((caller, i) => {
       it(`${c.name} as ${caller} -> ${c.expect[i]}`, async () => {
         const me = await actAs(caller);
-        const status = await c.run({ machineId, targetUserId, me });
+        const status = await c.run({ machineId, targetUserId, me, programId, revisionId, otherRevisionId });
         expect(status).toBe(c.expect[i]);
       });
     });
