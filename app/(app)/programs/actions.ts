@@ -60,7 +60,8 @@ export async function updateProgramAction(id: number, _prev: FormState, fd: Form
       operation: text(fd, "operation"),
       machineId: text(fd, "machineId"),
       partsPerCycle: text(fd, "partsPerCycle"),
-      safeZ: text(fd, "safeZ") ?? "",
+      // Blank: use the machine's safe Z (null clears the program's own).
+      safeZ: (text(fd, "safeZ") ?? "").trim() === "" ? null : text(fd, "safeZ"),
     });
     const before = await getProgram(id);
     if (!before) return { status: 404, message: "No such program." };
