@@ -220,6 +220,7 @@ export const programs = pgTable(
     index("programs_number_idx").on(sql`lower(${t.programNumber})`),
     index("programs_latest_idx").on(t.latestRevisionId),
     index("programs_updated_idx").on(t.updatedAt),
+    index("programs_title_idx").on(sql`lower(${t.title})`),
     check("programs_parts_per_cycle", sql`${t.partsPerCycle} between 1 and 100`),
   ],
 );

@@ -24,7 +24,7 @@ const handle = app.getRequestHandler();
 await app.prepare();
 let worker: RunningWorker | null = null;
 if (env.inProcessWorker) {
-  worker = await startWorker({ env });
+  worker = await startWorker({ env, inAppProcess: true });
   console.log("background worker running in this process (analysis jobs, mail)");
 }
 const server = createServer((req, res) => {

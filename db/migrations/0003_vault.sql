@@ -199,6 +199,7 @@ CREATE INDEX "programs_part_idx" ON "programs" USING btree ("part_id");--> state
 CREATE INDEX "programs_number_idx" ON "programs" USING btree (lower("program_number"));--> statement-breakpoint
 CREATE INDEX "programs_latest_idx" ON "programs" USING btree ("latest_revision_id");--> statement-breakpoint
 CREATE INDEX "programs_updated_idx" ON "programs" USING btree ("updated_at");--> statement-breakpoint
+CREATE INDEX "programs_title_idx" ON "programs" USING btree (lower("title"));--> statement-breakpoint
 CREATE INDEX "revision_analyses_state_idx" ON "revision_analyses" USING btree ("state");--> statement-breakpoint
 CREATE INDEX "revision_analyses_engine_idx" ON "revision_analyses" USING btree ("engine_version");--> statement-breakpoint
 CREATE INDEX "revision_findings_revision_idx" ON "revision_findings" USING btree ("revision_id");--> statement-breakpoint

@@ -22,7 +22,9 @@ import { analysisDiff, type AnalysisDiff, type ComparableAnalysis } from "@/lib/
 import { lineDiff, type LineDiff } from "@/lib/compare/line-diff";
 import { decider, revisionSummaryColumns, toRevisionSummary, uploader, type RevisionSummary } from "@/lib/dal/views";
 import type { Severity } from "@/lib/gcode";
-import { readFileBytes } from "@/lib/jobs/analysis";
+import { putCachedFile } from "@/lib/file-cache";
+import { analysisOptions, readFileBytes } from "@/lib/jobs/analysis";
+import { startEarlyAnalysis } from "@/lib/jobs/precompute";
 import { requestAnalysis } from "@/lib/jobs/queue";
 import type { ReceivedProgram } from "@/lib/upload";
 
@@ -83,8 +85,19 @@ export interface UploadMeta {
 export async function uploadRevision(programId: number, file: ReceivedProgram, meta: UploadMeta = {}): Promise<RevisionDetail> {
   const actor = await authorize("writePrograms");
   const ip = await requestIp();
+  // Where the app process runs a worker, the analysis starts now, alongside the write (the job takes the result).
+  const [setup] = await db()
+    .select({ machine: machines, safeZ: programs.safeZ, partsPerCycle: programs.partsPerCycle })
+    .from(programs)
+    .innerJoin(machines, eq(machines.id, programs.machineId))
+    .where(eq(programs.id, programId));
+  if (!setup) throw new RequestError(404, "No such program.");
+  startEarlyAnalysis(file.sha256, file.bytes, analysisOptions(setup.machine, setup));
   const id = await db().transaction(async (tx) => {
     await storeFile(tx, file);
+    // Before commit, so the in-process worker (woken by the commit) finds the bytes without reading them back.
+    // Right even if this transaction fails: the cache is keyed by the content's own hash.
+    putCachedFile(file.sha256, file.bytes);
     const [program] = await tx
       .select({ id: programs.id, last: programs.lastRevisionNumber })
       .from(programs)

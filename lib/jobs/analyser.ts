@@ -40,24 +40,16 @@ export class ThreadAnalyser {
     return w;
   }
 
-  /** Analyses `bytes` (the buffer is handed over to the thread and unusable afterwards). */
+  /** Analyses `bytes` on the thread. The caller's buffer stays usable (it may be a cached, shared copy). */
   analyse(bytes: Uint8Array, options: AnalyzeOptions): Promise<StoredAnalysis> {
     const id = this.nextId++;
     const w = this.thread();
-    // Hand over the memory without a copy when the bytes own their buffer; a view on a bigger or pooled buffer
-    // (which Node refuses to transfer) is copied first. Uint8Array's constructor copies; Buffer#slice would not.
-    const owns = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.byteLength > 4096;
-    const buffer = (owns ? bytes : new Uint8Array(bytes)).buffer as ArrayBuffer;
+    // One copy (milliseconds for 20 MB), handed over without another.
+    const buffer = new Uint8Array(bytes).buffer as ArrayBuffer;
     return new Promise<StoredAnalysis>((resolve, reject) => {
       this.pending.set(id, { resolve, reject });
       w.ref();
-      try {
-        w.postMessage({ id, bytes: buffer, options, delayMs: this.delayMs }, [buffer]);
-      } catch {
-        // Some buffers cannot be transferred (Node marks pooled ones so): send a copy.
-        const copy = new Uint8Array(bytes).buffer as ArrayBuffer;
-        w.postMessage({ id, bytes: copy, options, delayMs: this.delayMs }, [copy]);
-      }
+      w.postMessage({ id, bytes: buffer, options, delayMs: this.delayMs }, [buffer]);
     }).finally(() => {
       if (this.pending.size === 0) this.worker?.unref();
     });

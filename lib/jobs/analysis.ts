@@ -4,8 +4,10 @@
  */
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "../../db/client";
+import type { AnalyzeOptions } from "../gcode/types";
 import {
   machines,
+  type Machine,
   programs,
   revisionAnalyses,
   revisionFindings,
@@ -13,19 +15,36 @@ import {
   revisions,
   revisionTools,
 } from "../../db/schema";
+import { getCachedFile, putCachedFile } from "../file-cache";
 import { ENGINE_VERSION } from "../gcode/version";
 import { toMachineProfile } from "../machine-profile";
 import type { StoredAnalysis } from "./analyser";
+import { takeEarlyAnalysis } from "./precompute";
 
 /** Findings listed per rule in the stored analysis (the rest are only counted). */
 export const STORED_FINDINGS_PER_RULE = 200;
 
 export interface Analyse {
-  analyse(bytes: Uint8Array, options: import("../gcode/types").AnalyzeOptions): Promise<StoredAnalysis>;
+  analyse(bytes: Uint8Array, options: AnalyzeOptions): Promise<StoredAnalysis>;
 }
 
-/** Reads a file's bytes in binary form (the default text form would double them as hex). */
+/** The engine's options for a program on its machine: the machine's profile, the program's safe Z and parts. */
+export function analysisOptions(machine: Machine, program: { safeZ: number | null; partsPerCycle: number }): AnalyzeOptions {
+  return {
+    machine: toMachineProfile(machine),
+    safeZ: program.safeZ ?? undefined,
+    parts: program.partsPerCycle,
+    maxFindingsPerRule: STORED_FINDINGS_PER_RULE,
+  };
+}
+
+/**
+ * A file's bytes: from the in-memory cache when this process stored or read them lately, else from the database in
+ * binary form (the default text form would double them as hex).
+ */
 export async function readFileBytes(db: Db, sha256: string): Promise<Buffer | null> {
+  const cached = getCachedFile(sha256);
+  if (cached) return cached;
   // node-postgres supports `binary` on a query config (its types do not list it); its binary parser would turn
   // bytea into a string, so this query keeps every value as the raw Buffer.
   const config = {
@@ -35,7 +54,9 @@ export async function readFileBytes(db: Db, sha256: string): Promise<Buffer | nu
     types: { getTypeParser: () => (raw: Buffer) => raw },
   };
   const res = await db.$client.query<{ bytes: Buffer }>(config as import("pg").QueryConfig);
-  return res.rows[0]?.bytes ?? null;
+  const bytes = res.rows[0]?.bytes ?? null;
+  if (bytes) putCachedFile(sha256, bytes);
+  return bytes;
 }
 
 /**
@@ -70,12 +91,10 @@ export async function analyseRevision(db: Db, revisionId: number, analyser: Anal
   const bytes = await readFileBytes(db, row.sha256);
   if (!bytes) return "gone";
 
-  const a = await analyser.analyse(bytes, {
-    machine: toMachineProfile(row.machine),
-    safeZ: row.programSafeZ ?? undefined,
-    parts: row.partsPerCycle,
-    maxFindingsPerRule: STORED_FINDINGS_PER_RULE,
-  });
+  const options = analysisOptions(row.machine, { safeZ: row.programSafeZ, partsPerCycle: row.partsPerCycle });
+  // Started while the upload was being stored, when the app process runs a worker; else analyse now.
+  const early = takeEarlyAnalysis(row.sha256, options);
+  const a = (early && (await early.catch(() => null))) || (await analyser.analyse(bytes, options));
 
   return db.transaction(async (tx) => {
     const [current] = await tx

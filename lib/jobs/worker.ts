@@ -13,6 +13,7 @@ import { ENGINE_VERSION } from "../gcode/version";
 import { deliverOutbox, mailTransport } from "../mail/outbox";
 import { ThreadAnalyser } from "./analyser";
 import { analyseRevision, recordAnalysisFailure } from "./analysis";
+import { offerAnalyser } from "./precompute";
 import {
   ANALYSIS_FAILED_QUEUE,
   ANALYSIS_QUEUE,
@@ -34,6 +35,8 @@ export interface RunningWorker {
 export interface WorkerOptions {
   env: Env;
   log?: (msg: string) => void;
+  /** Running inside the app process: offer the analyser for early analysis of uploads (lib/jobs/precompute.ts). */
+  inAppProcess?: boolean;
 }
 
 /** How often the outbox is looked at when nobody woke the sender. */
@@ -94,6 +97,7 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
   await ensureQueues(boss, env);
 
   const analyser = new ThreadAnalyser(env.analysisDelayMs);
+  if (opts.inAppProcess) offerAnalyser(analyser);
   let analysed = 0;
   const workOptions = { pollingIntervalSeconds: env.jobPollSeconds, batchSize: 1, includeMetadata: true } as const;
 
@@ -196,6 +200,7 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
       await mailRunning;
       await (listener as Client | null)?.end().catch(() => undefined);
+      if (opts.inAppProcess) offerAnalyser(null);
       await analyser.close();
       transport.close();
       await db.$client.end();

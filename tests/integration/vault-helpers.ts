@@ -85,7 +85,7 @@ let shared: RunningWorker | null = null;
 
 /** One worker in this test process for the files that need analyses done. */
 export async function ensureWorker(): Promise<RunningWorker> {
-  shared ??= await startWorker({ env: workerEnv({ JOB_POLL_SECONDS: "0.5" }), log: () => undefined });
+  shared ??= await startWorker({ env: workerEnv({ JOB_POLL_SECONDS: "0.5" }), log: () => undefined, inAppProcess: true });
   return shared;
 }
 

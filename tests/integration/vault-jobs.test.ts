@@ -64,6 +64,36 @@ describe("analysis jobs", () => {
     expect(a!.result).not.toHaveProperty("toolpath");
   });
 
+  it("takes the analysis started during the upload when bytes and options match, and only then", async () => {
+    const { analyzeProgram } = await import("@/lib/gcode");
+    const { offerAnalyser } = await import("@/lib/jobs/precompute");
+    const { analyseRevision } = await import("@/lib/jobs/analysis");
+    let early = 0;
+    offerAnalyser({
+      analyse: async (bytes, options) => {
+        early++;
+        return analyzeProgram(bytes, { ...options, toolpath: false });
+      },
+    });
+    try {
+      await actAs("programmer");
+      const { programId } = await makeProgram();
+      const rev = await upload(programId, ncProgram());
+      expect(early).toBe(1);
+      const refuse = { analyse: () => Promise.reject(new Error("should have taken the early result")) };
+      expect(await analyseRevision(db(), rev.id, refuse)).toBe("done");
+      expect((await analysisOf(rev.id))!.toolCount).toBe(1);
+      // Taken once: a second run (options unchanged) analyses again.
+      await expect(analyseRevision(db(), rev.id, refuse)).rejects.toThrow(/should have taken/);
+      // Options changed after the upload (safe Z): the early result does not fit and is not used.
+      const other = await upload(programId, ncProgram());
+      await programRoute.PATCH(jsonRequest("PATCH", { safeZ: 12 }), params({ id: String(programId) }));
+      await expect(analyseRevision(db(), other.id, refuse)).rejects.toThrow(/should have taken/);
+    } finally {
+      offerAnalyser(null);
+    }
+  });
+
   it("re-analyses every revision of a program whose safe Z or machine changes", async () => {
     await ensureWorker();
     await actAs("programmer");

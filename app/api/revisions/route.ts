@@ -20,7 +20,10 @@ export const POST = route(async (req) => {
   await authorize("writePrograms");
   const query = readQuery(req, pushQuerySchema);
   const program = await findOrCreateProgram(query);
+  const t0 = performance.now();
   const file = await receiveProgram(req, env().uploadMaxBytes);
+  const t1 = performance.now();
   const revision = await uploadRevision(program.id, file, { note: query.note ?? "" });
-  return NextResponse.json({ revision, programCreated: program.created }, { status: 201 });
+  const timing = `receive;dur=${(t1 - t0).toFixed(1)}, store;dur=${(performance.now() - t1).toFixed(1)}`;
+  return NextResponse.json({ revision, programCreated: program.created }, { status: 201, headers: { "Server-Timing": timing } });
 });

@@ -30,8 +30,12 @@ export const POST = route<Ctx>(async (req, { params }) => {
   if (!program) throw new RequestError(404, "No such program.");
   const note = noteSchema.safeParse(decodeHeader(req.headers.get("x-revision-note")) ?? "");
   if (!note.success) throw new RequestError(422, "The note is invalid.", { fieldErrors: { note: note.error.issues.map((i) => i.message) } });
+  const t0 = performance.now();
   const file = await receiveProgram(req, env().uploadMaxBytes);
-  return NextResponse.json({ revision: await uploadRevision(programId, file, { note: note.data }) }, { status: 201 });
+  const t1 = performance.now();
+  const revision = await uploadRevision(programId, file, { note: note.data });
+  const timing = `receive;dur=${(t1 - t0).toFixed(1)}, store;dur=${(performance.now() - t1).toFixed(1)}`;
+  return NextResponse.json({ revision }, { status: 201, headers: { "Server-Timing": timing } });
 });
 
 function decodeHeader(v: string | null): string | null {
