@@ -182,6 +182,7 @@ export function UploadPanel(target: UploadTarget) {
   return (
     <div className="space-y-4" data-testid="upload-panel">
       <div
+        data-testid="drop-zone"
         {...getRootProps({
           className: `rounded-lg border-2 border-dashed p-6 text-center transition-colors ${
             isDragActive ? "border-brand bg-brand/5" : "border-rule bg-paper/50"

@@ -22,13 +22,20 @@ const refresh = (id: number, programId?: number) => {
 
 /** A programmer submits a draft for review (comment optional). */
 export async function submitRevisionAction(id: number, _prev: FormState, fd: FormData): Promise<FormState> {
-  return runAction(fd, async () => {
+  const state = await runAction(fd, async () => {
     await authorize("writePrograms");
     const { comment } = submitSchema.parse({ comment: text(fd, "comment") });
     const rev = await submitRevision(id, comment);
     refresh(id, rev.programId);
-    return { status: 200, message: `Revision ${rev.number} is waiting for a lead's review. The leads got a mail.` };
+    return { status: 200 };
   });
+  return done(state, id, "submitted");
+}
+
+/** After a step the form that made it is gone (the revision moved on): the page says what happened instead. */
+function done(state: FormState, id: number, what: "submitted" | "released" | "rejected"): FormState {
+  if (state.status !== 200) return state;
+  redirect(`/revisions/${id}?done=${what}`);
 }
 
 /**
@@ -51,7 +58,7 @@ function waiversFrom(fd: FormData) {
 
 /** A lead releases a submitted revision: password again, a comment, and a waiver reason for each error finding. */
 export async function releaseRevisionAction(id: number, _prev: FormState, fd: FormData): Promise<FormState> {
-  return runAction(fd, async () => {
+  const state = await runAction(fd, async () => {
     await authorize("reviewRevisions");
     const { waivers, fieldErrors } = waiversFrom(fd);
     const parsed = releaseSchema.safeParse({ password: text(fd, "password"), comment: text(fd, "comment"), waivers });
@@ -66,13 +73,14 @@ export async function releaseRevisionAction(id: number, _prev: FormState, fd: Fo
     }
     const rev = await releaseRevision(id, parsed.data);
     refresh(id, rev.programId);
-    return { status: 200, message: `Released revision ${rev.number}; your signature is bound to its SHA-256.` };
+    return { status: 200 };
   });
+  return done(state, id, "released");
 }
 
 /** A lead rejects a submitted revision with a comment. */
 export async function rejectRevisionAction(id: number, _prev: FormState, fd: FormData): Promise<FormState> {
-  return runAction(fd, async () => {
+  const state = await runAction(fd, async () => {
     await authorize("reviewRevisions");
     const parsed = rejectSchema.safeParse({ comment: text(fd, "rejectComment") });
     if (!parsed.success) {
@@ -80,8 +88,9 @@ export async function rejectRevisionAction(id: number, _prev: FormState, fd: For
     }
     const rev = await rejectRevision(id, parsed.data.comment);
     refresh(id, rev.programId);
-    return { status: 200, message: `Rejected revision ${rev.number}. The programmer got a mail.` };
+    return { status: 200 };
   });
+  return done(state, id, "rejected");
 }
 
 /** Deletes a draft (its uploader or an admin), then shows its program. */

@@ -20,9 +20,16 @@ import { programRevisions } from "@/lib/dal/programs";
 import { getRevision, type RevisionDetail } from "@/lib/dal/revisions";
 import { listWorkOffsets } from "@/lib/dal/work-offsets";
 import { pageId } from "@/lib/page-params";
+import { flattenSearch, type SearchParams } from "@/lib/search-params";
 import { deleteDraftAction, rejectRevisionAction, releaseRevisionAction, submitRevisionAction } from "../actions";
 
-type Props = { params: Promise<{ id: string }> };
+type Props = { params: Promise<{ id: string }>; searchParams: Promise<SearchParams> };
+
+const DONE: Record<string, string> = {
+  submitted: "Submitted for review: the leads got a mail.",
+  released: "Released: your signature is bound to this revision's SHA-256, and the programmer got a mail.",
+  rejected: "Rejected: the programmer got a mail with your comment.",
+};
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
   const id = pageId((await params).id);
@@ -37,7 +44,7 @@ function releaseBlocked(rev: RevisionDetail, userId: number, role: Parameters<ty
   return null;
 }
 
-export default async function RevisionPage({ params }: Props) {
+export default async function RevisionPage({ params, searchParams }: Props) {
   const { user, allowed } = await pageAccess("readPrograms");
   if (!allowed) return <Forbidden what="reading programs" />;
   const id = pageId((await params).id);
@@ -46,6 +53,7 @@ export default async function RevisionPage({ params }: Props) {
   if (!rev) notFound();
   const [siblings, machineOffsets] = await Promise.all([programRevisions(rev.programId), listWorkOffsets(rev.program.machine.id)]);
   const a = rev.analysis;
+  const doneNote = DONE[flattenSearch(await searchParams).done ?? ""];
   const result = a?.state === "done" ? (rev.result as StoredResult | null) : null;
   const checking = a?.state === "queued" || a?.state === "running";
   const previous = siblings.find((s) => s.number < rev.number);
@@ -97,6 +105,11 @@ export default async function RevisionPage({ params }: Props) {
           )}
         </div>
 
+        {doneNote && (
+          <p role="status" className="rounded-md bg-ok/10 px-3 py-2 text-sm text-ok" data-testid="done-note">
+            {doneNote}
+          </p>
+        )}
         <CheckCaution />
         {checking && <RefreshWhenChecked revisionIds={[rev.id]} />}
         {a?.state === "failed" && (
