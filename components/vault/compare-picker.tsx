@@ -21,26 +21,30 @@ export function ComparePicker({ revisions }: { revisions: { id: number; number: 
         if (a && b && a !== b) router.push(`/revisions/${a}/compare/${b}`);
       }}
     >
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">From</span>
-        <select value={a} onChange={(e) => setA(e.target.value)} className={field} name="a">
+      <div className="text-sm">
+        <label htmlFor="compare-a" className="mb-1 block font-medium">
+          From
+        </label>
+        <select id="compare-a" value={a} onChange={(e) => setA(e.target.value)} className={field} name="a">
           {revisions.map((r) => (
             <option key={r.id} value={r.id}>
               {r.label}
             </option>
           ))}
         </select>
-      </label>
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">To</span>
-        <select value={b} onChange={(e) => setB(e.target.value)} className={field} name="b">
+      </div>
+      <div className="text-sm">
+        <label htmlFor="compare-b" className="mb-1 block font-medium">
+          To
+        </label>
+        <select id="compare-b" value={b} onChange={(e) => setB(e.target.value)} className={field} name="b">
           {revisions.map((r) => (
             <option key={r.id} value={r.id}>
               {r.label}
             </option>
           ))}
         </select>
-      </label>
+      </div>
       <button type="submit" disabled={a === b} className="min-h-10 rounded-md border border-rule bg-white px-4 py-2 text-sm font-semibold hover:bg-paper disabled:opacity-60">
         Compare
       </button>

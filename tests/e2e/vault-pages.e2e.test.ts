@@ -183,8 +183,8 @@ describe("vault pages in the browser", () => {
     expect(await page.locator('[data-testid="code-pane"] [data-line]').count()).toBeLessThan(200);
 
     await page.goto(appUrl(programPath));
-    await page.getByLabel("From").selectOption({ label: "Revision 1 (draft)" });
-    await page.getByLabel("To").selectOption({ label: "Revision 2 (draft)" });
+    await page.getByLabel("From", { exact: true }).selectOption({ label: "Revision 1 (draft)" });
+    await page.getByLabel("To", { exact: true }).selectOption({ label: "Revision 2 (draft)" });
     await page.getByRole("button", { name: "Compare" }).click();
     await page.waitForURL((u) => u.pathname === `/revisions/${first}/compare/${second}`);
     const added = page.locator('[data-testid="line-diff"] [data-kind="added"]');
