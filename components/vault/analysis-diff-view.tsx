@@ -18,7 +18,6 @@ const FIELD_LABELS: Record<string, string> = {
   lowestZ: "lowest Z",
   spindle: "spindle",
   feed: "feed",
-  totalSeconds: "time",
 };
 
 function show(v: unknown): string {
@@ -71,7 +70,11 @@ export function AnalysisDiffView({ diff }: { diff: AnalysisDiff }) {
               <li key={c.number}>
                 <strong>T{c.number}</strong>:{" "}
                 {Object.entries(c.changes)
-                  .map(([k, ch]) => `${FIELD_LABELS[k] ?? k} ${show(ch.from)} → ${show(ch.to)}`)
+                  .map(([k, ch]) =>
+                    k === "totalSeconds"
+                      ? `time ${formatDuration(Number(ch.from))} → ${formatDuration(Number(ch.to))}`
+                      : `${FIELD_LABELS[k] ?? k} ${show(ch.from)} → ${show(ch.to)}`,
+                  )
                   .join("; ")}
               </li>
             ))}

@@ -34,7 +34,7 @@ const columns = [
     id: "program",
     header: "Program",
     cell: ({ row }) => (
-      <div>
+      <div className="min-w-40">
         <Link href={`/programs/${row.original.id}`} className="font-semibold text-brand hover:underline">
           {row.original.programNumber}
         </Link>
@@ -100,7 +100,15 @@ const columns = [
   col.accessor("updatedAt", {
     id: "updated",
     header: "Changed",
-    cell: ({ getValue }) => <span className="whitespace-nowrap tabular-nums">{formatWhen(getValue())}</span>,
+    cell: ({ getValue }) => {
+      const [day, time] = formatWhen(getValue()).split(" ");
+      return (
+        <span className="whitespace-nowrap tabular-nums">
+          {day}
+          <span className="block text-xs text-ink-soft">{time} UTC</span>
+        </span>
+      );
+    },
   }),
 ];
 

@@ -46,7 +46,9 @@ function ReleaseForm({ action, number, sha256, errorFindings, unlistedErrors }: 
       {errorFindings.length > 0 && (
         <fieldset className="space-y-3 rounded-md border border-bad/40 p-3">
           <legend className="px-1 text-sm font-semibold text-bad">
-            {errorFindings.length} error finding{errorFindings.length === 1 ? "" : "s"} block the release unless each is waived with a reason
+            {errorFindings.length === 1
+              ? "1 error finding blocks the release unless it is waived with a reason"
+              : `${errorFindings.length} error findings block the release unless each is waived with a reason`}
           </legend>
           {unlistedErrors > 0 && (
             <p className="text-sm text-bad">There are {unlistedErrors} more error findings than listed: too many to waive one by one; fix the program.</p>

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, desc, eq, inArray, isNotNull, sql } from "drizzle-orm";
+import { and, asc, desc, eq, isNotNull, or, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { machines, programs, revisionAnalyses, revisions, type RevisionStatus } from "@/db/schema";
 import { authorize } from "@/lib/auth/session";
@@ -33,10 +33,18 @@ async function revisionsWhere(where: ReturnType<typeof and>, order: "newest" | "
   }));
 }
 
-/** The caller's own drafts and rejected revisions, newest first (what a programmer picks up next). */
+/** The caller's own drafts and rejected revisions not yet followed by another, newest first (what a programmer picks up next). */
 export async function listMyOpenRevisions(limit = 20): Promise<OverviewRevision[]> {
   const user = await authorize("readPrograms");
-  return revisionsWhere(and(eq(revisions.uploadedBy, user.id), inArray(revisions.status, ["draft", "rejected"])), "newest", limit);
+  // A rejected revision with a newer one after it is dealt with already.
+  return revisionsWhere(
+    and(
+      eq(revisions.uploadedBy, user.id),
+      or(eq(revisions.status, "draft"), and(eq(revisions.status, "rejected"), eq(programs.latestRevisionId, revisions.id))),
+    ),
+    "newest",
+    limit,
+  );
 }
 
 /** Revisions submitted for review, the longest waiting first. */

@@ -8,6 +8,7 @@ import { DiffView } from "@/components/vault/diff-view";
 import { formatWhen, plural } from "@/components/vault/format";
 import { StatusBadge } from "@/components/vault/status-badge";
 import { pageAccess } from "@/lib/auth/page-guard";
+import { getProgram } from "@/lib/dal/programs";
 import { compareRevisions } from "@/lib/dal/revisions";
 import { pageId } from "@/lib/page-params";
 
@@ -25,6 +26,7 @@ export default async function ComparePage({ params }: Props) {
   const cmp = await compareRevisions(aId, bId);
   if (!cmp) notFound();
   const { a, b, lines, analysis } = cmp;
+  const program = await getProgram(b.programId);
   const aLabel = `revision ${a.number}`;
   const bLabel = `revision ${b.number}`;
   return (
@@ -32,7 +34,7 @@ export default async function ComparePage({ params }: Props) {
       <div>
         <p className="text-sm">
           <Link href="/programs" className="text-brand hover:underline">Programs</Link> /{" "}
-          <Link href={`/programs/${b.programId}`} className="text-brand hover:underline">Program</Link> / Compare
+          <Link href={`/programs/${b.programId}`} className="text-brand hover:underline">{program?.programNumber ?? "Program"}</Link> / Compare
         </p>
         <h1 className="mt-1 text-2xl font-semibold">
           Revision {a.number} → revision {b.number}
