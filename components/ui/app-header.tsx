@@ -3,6 +3,7 @@ import type { Role } from "@/db/schema";
 import { can } from "@/lib/auth/roles";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { signOutAction } from "@/app/(app)/actions";
+import { NavLinks } from "./nav-links";
 
 export function AppHeader({ user }: { user: { name: string; role: Role } }) {
   const links = [
@@ -19,15 +20,7 @@ export function AppHeader({ user }: { user: { name: string; role: Role } }) {
         <Link href="/" className="text-lg font-bold tracking-tight">
           Cycle<span className="text-sky-300">gate</span>
         </Link>
-        <nav aria-label="Main" className="flex flex-1 flex-wrap gap-1">
-          {links
-            .filter((l) => l.show)
-            .map((l) => (
-              <Link key={l.href} href={l.href} className="rounded px-3 py-2 text-sm font-medium text-white/85 hover:bg-white/10 hover:text-white">
-                {l.label}
-              </Link>
-            ))}
-        </nav>
+        <NavLinks links={links.filter((l) => l.show).map(({ href, label }) => ({ href, label }))} />
         <div className="flex items-center gap-3 text-sm">
           <Link href="/account" className="hover:underline" data-testid="current-user">
             {user.name}
