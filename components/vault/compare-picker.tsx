@@ -21,30 +21,25 @@ export function ComparePicker({ revisions }: { revisions: { id: number; number: 
         if (a && b && a !== b) router.push(`/revisions/${a}/compare/${b}`);
       }}
     >
-      <div className="text-sm">
-        <label htmlFor="compare-a" className="mb-1 block font-medium">
-          From
-        </label>
-        <select id="compare-a" value={a} onChange={(e) => setA(e.target.value)} className={field} name="a">
-          {revisions.map((r) => (
-            <option key={r.id} value={r.id}>
-              {r.label}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div className="text-sm">
-        <label htmlFor="compare-b" className="mb-1 block font-medium">
-          To
-        </label>
-        <select id="compare-b" value={b} onChange={(e) => setB(e.target.value)} className={field} name="b">
-          {revisions.map((r) => (
-            <option key={r.id} value={r.id}>
-              {r.label}
-            </option>
-          ))}
-        </select>
-      </div>
+      {(
+        [
+          ["a", "From", a, setA],
+          ["b", "To", b, setB],
+        ] as const
+      ).map(([key, label, value, set]) => (
+        <div key={key} className="text-sm">
+          <label htmlFor={`compare-${key}`} className="mb-1 block font-medium">
+            {label}
+          </label>
+          <select id={`compare-${key}`} value={value} onChange={(e) => set(e.target.value)} className={field} name={key}>
+            {revisions.map((r) => (
+              <option key={r.id} value={r.id}>
+                {r.label}
+              </option>
+            ))}
+          </select>
+        </div>
+      ))}
       <button type="submit" disabled={a === b} className="min-h-10 rounded-md border border-rule bg-white px-4 py-2 text-sm font-semibold hover:bg-paper disabled:opacity-60">
         Compare
       </button>

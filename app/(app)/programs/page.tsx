@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { Forbidden } from "@/components/ui/forbidden";
 import { CheckCaution } from "@/components/ui/check-caution";
+import { EmptyState } from "@/components/ui/empty-state";
 import { ProgramFilters } from "@/components/vault/program-filters";
 import { ProgramsTable } from "@/components/vault/programs-table";
 import { plural } from "@/components/vault/format";
@@ -56,23 +57,17 @@ export default async function ProgramsPage({ searchParams }: { searchParams: Pro
         {filtered ? " match the filters" : ""}
       </p>
       {list.programs.length === 0 ? (
-        <div className="rounded-lg border border-dashed border-rule bg-panel p-8 text-center">
-          {filtered ? (
-            <>
-              <p className="font-medium">No program matches these filters.</p>
-              <Link href="/programs" className="mt-2 inline-block text-brand hover:underline">
-                Clear the filters
-              </Link>
-            </>
-          ) : (
-            <>
-              <p className="font-medium">No programs yet.</p>
-              <p className="text-sm text-ink-soft">
-                {can(user.role, "writePrograms") ? "Start with New program, then upload its first revision." : "A programmer adds them."}
-              </p>
-            </>
-          )}
-        </div>
+        filtered ? (
+          <EmptyState title="No program matches these filters.">
+            <Link href="/programs" className="text-brand hover:underline">
+              Clear the filters
+            </Link>
+          </EmptyState>
+        ) : (
+          <EmptyState title="No programs yet.">
+            {can(user.role, "writePrograms") ? "Start with New program, then upload its first revision." : "A programmer adds them."}
+          </EmptyState>
+        )
       ) : (
         <ProgramsTable
           rows={list.programs}

@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
+import { EmptyState } from "@/components/ui/empty-state";
 import { Forbidden } from "@/components/ui/forbidden";
 import { ComparePicker } from "@/components/vault/compare-picker";
 import { formatNumber } from "@/components/vault/format";
@@ -37,7 +38,7 @@ export default async function ProgramPage({ params }: Props) {
   const writer = can(user.role, "writePrograms");
   const [events, signatures, machine, machines] = await Promise.all([
     listProgramEvents(id, 100),
-    listProgramSignatures(id),
+    listProgramSignatures(program.revisions),
     getMachine(program.machine.id),
     writer ? listMachines() : Promise.resolve([]),
   ]);
@@ -115,10 +116,7 @@ export default async function ProgramPage({ params }: Props) {
           <ComparePicker revisions={program.revisions.map((r) => ({ id: r.id, number: r.number, label: `Revision ${r.number} (${r.status})` }))} />
         </div>
         {program.revisions.length === 0 ? (
-          <div className="rounded-lg border border-dashed border-rule bg-panel p-8 text-center">
-            <p className="font-medium">No revisions yet.</p>
-            <p className="text-sm text-ink-soft">{writer ? "Drop the first one in the upload area above." : "A programmer uploads the first one."}</p>
-          </div>
+          <EmptyState title="No revisions yet.">{writer ? "Drop the first one in the upload area above." : "A programmer uploads the first one."}</EmptyState>
         ) : (
           <RevisionList revisions={program.revisions} releasedId={program.releasedRevisionId} />
         )}

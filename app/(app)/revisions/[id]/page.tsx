@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
+import { EmptyState } from "@/components/ui/empty-state";
 import { Forbidden } from "@/components/ui/forbidden";
 import { BoundsList, OffsetTable, ToolTable, type StoredResult } from "@/components/vault/analysis-tables";
 import { BackplotSlot } from "@/components/vault/backplot-slot";
@@ -153,9 +154,7 @@ export default async function RevisionPage({ params, searchParams }: Props) {
               ))}
             </dl>
           ) : (
-            <p className="rounded-lg border border-dashed border-rule bg-panel p-4 text-sm text-ink-soft">
-              The summary appears when the server&apos;s check is done.
-            </p>
+            <EmptyState title="The summary appears when the server's check is done." />
           )}
           {result && <BoundsList result={result} />}
         </section>

@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
+import { EmptyState } from "@/components/ui/empty-state";
 import { Forbidden } from "@/components/ui/forbidden";
 import { AnalysisDiffView } from "@/components/vault/analysis-diff-view";
 import { DiffView } from "@/components/vault/diff-view";
@@ -68,9 +69,7 @@ export default async function ComparePage({ params }: Props) {
         {analysis ? (
           <AnalysisDiffView diff={analysis} />
         ) : (
-          <p className="rounded-lg border border-dashed border-rule bg-panel p-4 text-sm text-ink-soft">
-            The checks are compared once the server has checked both revisions.
-          </p>
+          <EmptyState title="The checks are compared once the server has checked both revisions." />
         )}
       </section>
 
