@@ -1,7 +1,11 @@
 import type { NextConfig } from "next";
+import { ACTION_BODY_LIMIT_BYTES } from "./lib/request-gate";
+
+// Security headers and the method and body-size gate live in scripts/serve.ts, which serves every
+// answer; see DEVELOPERS.md, "Security headers".
 
 const nextConfig: NextConfig = {
-  serverExternalPackages: ["pg", "@node-rs/argon2", "pg-boss", "nodemailer", "busboy"],
+  serverExternalPackages: ["pg", "@node-rs/argon2", "rate-limiter-flexible", "pg-boss", "nodemailer", "busboy", "pg-copy-streams"],
   poweredByHeader: false,
   turbopack: {
     resolveAlias: {
@@ -9,7 +13,9 @@ const nextConfig: NextConfig = {
     },
   },
   experimental: {
-    serverActions: { bodySizeLimit: "1mb" },
+    serverActions: { bodySizeLimit: ACTION_BODY_LIMIT_BYTES },
+    // forbidden() for refused pages (403 with app/(app)/forbidden.tsx).
+    authInterrupts: true,
   },
 };
 

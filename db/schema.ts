@@ -137,6 +137,28 @@ export const auditEvents = pgTable(
 
 export type AuditEvent = typeof auditEvents.$inferSelect;
 
+/**
+ * Repeated events waiting to be written as one audit row (lib/audit.ts, recordRepeatedEvent): the first
+ * event of a window goes to audit_events at once, the rest only count here until the window ends.
+ */
+export const auditRollups = pgTable(
+  "audit_rollups",
+  {
+    /** What groups the events: action plus actor or address plus what is constant, never free text. */
+    key: varchar("key", { length: 200 }).primaryKey(),
+    /** Who, what and where of the first event; the summary row repeats them. */
+    event: jsonb("event").notNull(),
+    firstAt: timestamp("first_at", { withTimezone: true }).notNull().defaultNow(),
+    lastAt: timestamp("last_at", { withTimezone: true }).notNull().defaultNow(),
+    windowEnd: timestamp("window_end", { withTimezone: true }).notNull(),
+    /** Events after the first one. */
+    repeats: integer("repeats").notNull().default(0),
+    /** Up to ten distinct values that varied between the events (e.g. the e-mails tried). */
+    samples: jsonb("samples").notNull().default([]),
+  },
+  (t) => [index("audit_rollups_window_end_idx").on(t.windowEnd)],
+);
+
 /** The store of rate-limiter-flexible (its own column layout). */
 export const rateLimits = pgTable("rate_limits", {
   key: varchar("key", { length: 255 }).primaryKey(),

@@ -1,6 +1,7 @@
 import "server-only";
 import { z } from "zod";
 import { AuthError, RequestError } from "@/lib/auth/errors";
+import { positiveId } from "@/lib/validation";
 
 import type { FormState } from "@/lib/form-state";
 
@@ -46,4 +47,22 @@ export async function runAction(fd: FormData, body: () => Promise<FormState>): P
 /** Parses FormData-derived input, throwing a ZodError that runAction turns into field errors. */
 export function parseForm<T extends z.ZodType>(schema: T, input: unknown): z.infer<T> {
   return schema.parse(input);
+}
+
+/**
+ * The id a page bound to an action (`action.bind(null, row.id)`), checked at the edge: the client
+ * sends bound arguments and can send anything, so take the parameter as `unknown` and call this
+ * first thing inside runAction, after authorize. Anything but a JavaScript number that is a whole
+ * number from 1 to 2^31-1 (a string "7" included) is a 400; DAL guards that compare ids then hold.
+ */
+export function actionId(raw: unknown): number {
+  const id = positiveId(raw);
+  if (id === null) throw new RequestError(400, "That record reference is not valid. Reload the page and try again.");
+  return id;
+}
+
+/** A text field of a form, or undefined when it is missing or a file. */
+export function formString(fd: FormData, name: string): string | undefined {
+  const v = fd.get(name);
+  return typeof v === "string" ? v : undefined;
 }

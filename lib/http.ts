@@ -3,6 +3,8 @@ import { NextResponse } from "next/server";
 import { z } from "zod";
 import { runAsApiRequest } from "@/lib/auth/api-context";
 import { AuthError, RequestError } from "@/lib/auth/errors";
+import { formatBytes } from "@/lib/request-gate";
+import { positiveIdFromText } from "@/lib/validation";
 
 export type JsonError = { error: string; issues?: unknown };
 
@@ -37,19 +39,60 @@ export function route<C>(handler: Handler<C>): Handler<C> {
     });
 }
 
-const MAX_JSON_BYTES = 64 * 1024;
+/** The largest JSON body a route reads by default. */
+export const MAX_JSON_BYTES = 64 * 1024;
 
-/** Reads a JSON body, checking its type (415), size (413), syntax (400) and shape (422). */
-export async function readJson<T extends z.ZodType>(req: Request, schema: T): Promise<z.infer<T>> {
-  const type = req.headers.get("content-type") ?? "";
-  if (!/^application\/json\b/i.test(type)) throw new RequestError(415, "Send the body as application/json.");
-  const length = Number(req.headers.get("content-length") ?? "0");
-  if (length > MAX_JSON_BYTES) throw new RequestError(413, "The body is too large.");
-  const text = await req.text();
-  if (text.length > MAX_JSON_BYTES) throw new RequestError(413, "The body is too large.");
+const TOKEN = "[!#$%&'*+.^_`|~0-9A-Za-z-]+";
+const MEDIA_PARAMETER = new RegExp(`^\\s*${TOKEN}=(?:${TOKEN}|"[^"\\\\]*")\\s*$`);
+
+/**
+ * True for "application/json" itself, any case, with optional well-formed parameters
+ * ("application/json; charset=utf-8"). Not "application/json-patch+json", "text/json" or "application/json;".
+ */
+export function isJsonMediaType(header: string | null): boolean {
+  if (!header) return false;
+  const [type, ...params] = header.split(";");
+  return type!.trim().toLowerCase() === "application/json" && params.every((p) => MEDIA_PARAMETER.test(p));
+}
+
+/**
+ * The request body as bytes, refusing with 413 as soon as it passes `maxBytes`, whether or not
+ * the client sent a Content-Length (a chunked body is counted as it arrives, never buffered whole).
+ */
+export async function readBodyBytes(req: Request, maxBytes: number): Promise<Uint8Array> {
+  const tooLarge = () => new RequestError(413, `The body is too large (at most ${formatBytes(maxBytes)}).`);
+  const declared = Number(req.headers.get("content-length") ?? "0");
+  if (declared > maxBytes) throw tooLarge();
+  if (!req.body) return new Uint8Array(0);
+  const reader = req.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > maxBytes) {
+      await reader.cancel();
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  const out = new Uint8Array(total);
+  let at = 0;
+  for (const c of chunks) {
+    out.set(c, at);
+    at += c.byteLength;
+  }
+  return out;
+}
+
+/** Reads a JSON body, checking its type (415), size (413), syntax and encoding (400) and shape (422). */
+export async function readJson<T extends z.ZodType>(req: Request, schema: T, maxBytes = MAX_JSON_BYTES): Promise<z.infer<T>> {
+  if (!isJsonMediaType(req.headers.get("content-type"))) throw new RequestError(415, "Send the body as application/json.");
+  const bytes = await readBodyBytes(req, maxBytes);
   let data: unknown;
   try {
-    data = JSON.parse(text);
+    data = JSON.parse(new TextDecoder("utf-8", { fatal: true }).decode(bytes));
   } catch {
     throw new RequestError(400, "The body is not valid JSON.");
   }
@@ -60,8 +103,7 @@ export async function readJson<T extends z.ZodType>(req: Request, schema: T): Pr
 
 /** A positive integer id from a dynamic segment, or 404. */
 export function parseId(raw: string): number {
-  if (!/^[1-9]\d{0,9}$/.test(raw)) throw new RequestError(404, "Not found.");
-  const n = Number(raw);
-  if (n > 2_147_483_647) throw new RequestError(404, "Not found.");
-  return n;
+  const id = positiveIdFromText(raw);
+  if (id === null) throw new RequestError(404, "Not found.");
+  return id;
 }

@@ -2,29 +2,34 @@ import { z } from "zod";
 import { REVISION_STATUSES } from "@/db/schema";
 import { RULE_IDS, type RuleId } from "@/lib/gcode/types";
 import { workOffsetValuesSchema } from "@/lib/machine-profile";
+import { decimalNumber, multiLineText, positiveId, positiveIdFromText, singleLineText } from "@/lib/validation";
 
-const CONTROL = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/;
-const LINE_BREAK = /[\r\n\t]/;
-
-/** One line of plain text: trimmed, no control characters. */
+/** One line of plain text (the shared block: no control characters, line breaks or bidi marks). */
 export const singleLine = (label: string, max: number, min = 1) =>
-  z
-    .string({ error: `Enter ${label}.` })
-    .trim()
-    .min(min, min > 0 ? `Enter ${label}.` : undefined)
-    .max(max, `At most ${max} characters.`)
-    .refine((s) => !CONTROL.test(s) && !LINE_BREAK.test(s), "No control characters or line breaks.");
+  singleLineText({ max, required: min > 0 ? `Enter ${label}.` : undefined });
 
-/** Free text (notes, comments): line breaks and tabs allowed, other control characters not. */
+/** Free text (notes, comments): the shared multi-line block. */
 export const multiLine = (label: string, max: number, min = 0) =>
-  z
-    .string({ error: `Enter ${label}.` })
-    .trim()
-    .min(min, min > 0 ? `Enter ${label}.` : undefined)
-    .max(max, `At most ${max} characters.`)
-    .refine((s) => !CONTROL.test(s), "No control characters.");
+  multiLineText({ max, required: min > 0 ? `Enter ${label}.` : undefined });
 
-const id = (label: string) => z.coerce.number({ error: `Pick ${label}.` }).int(`Pick ${label}.`).min(1, `Pick ${label}.`).max(2_147_483_647);
+/** A record id from a JSON number or a query string's canonical digits. */
+const id = (label: string) =>
+  z.unknown().transform((v, ctx) => {
+    const n = typeof v === "string" ? positiveIdFromText(v) : positiveId(v);
+    if (n === null) {
+      ctx.addIssue({ code: "custom", message: `Pick ${label}.` });
+      return z.NEVER;
+    }
+    return n;
+  });
+
+/** A whole number from lo to hi, from a JSON number or a plain decimal string. */
+export const wholeNumber = (lo: number, hi: number) =>
+  decimalNumber("Enter a whole number.")
+    .refine((n) => Number.isInteger(n), "Enter a whole number.")
+    .refine((n) => n >= lo, `At least ${lo}.`)
+    .refine((n) => n <= hi, `At most ${hi}.`);
+
 const blank = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
 
 /** A shop part number or program number: letters, digits and - _ . / (e.g. "FH-2207", "O1001"). */
@@ -46,9 +51,9 @@ const programFields = {
   partId: id("a part"),
   machineId: id("a machine"),
   operation: singleLine("an operation", 100, 0).default(""),
-  partsPerCycle: z.coerce.number().int("Enter a whole number.").min(1, "At least 1.").max(100, "At most 100.").default(1),
+  partsPerCycle: wholeNumber(1, 100).default(1),
   /** Null: use the machine's safe Z. */
-  safeZ: z.preprocess(blank, z.coerce.number().refine(Number.isFinite, "Enter a number.").nullable().default(null)),
+  safeZ: z.preprocess(blank, decimalNumber("Enter a number.").nullable().default(null)),
 };
 
 export const programCreateSchema = z.object(programFields);
@@ -60,8 +65,8 @@ export const programUpdateSchema = z
     partId: programFields.partId.optional(),
     machineId: programFields.machineId.optional(),
     operation: singleLine("an operation", 100, 0).optional(),
-    partsPerCycle: z.coerce.number().int("Enter a whole number.").min(1, "At least 1.").max(100, "At most 100.").optional(),
-    safeZ: z.preprocess(blank, z.coerce.number().refine(Number.isFinite, "Enter a number.").nullable()).optional(),
+    partsPerCycle: wholeNumber(1, 100).optional(),
+    safeZ: z.preprocess(blank, decimalNumber("Enter a number.").nullable()).optional(),
   })
   .strict()
   .refine((v) => Object.keys(v).length > 0, "Nothing to change.");
@@ -77,13 +82,13 @@ export const programListSchema = z.object({
   program: z.preprocess(blank, singleLine("a program number", 32).optional()),
   machine: z.preprocess(blank, id("a machine").optional()),
   status: z.preprocess(blank, z.enum(REVISION_STATUSES, { error: "Pick a status." }).optional()),
-  tool: z.preprocess(blank, z.coerce.number().int().min(0).max(99_999).optional()),
+  tool: z.preprocess(blank, wholeNumber(0, 99_999).optional()),
   rule: z.preprocess(blank, z.enum(RULE_IDS as readonly RuleId[] as [RuleId, ...RuleId[]], { error: "Pick a rule." }).optional()),
   offset: z.preprocess(blank, singleLine("a work offset", 16).optional()),
   sort: z.preprocess(blank, z.enum(PROGRAM_SORTS).default("updated")),
   dir: z.preprocess(blank, z.enum(["asc", "desc"]).optional()),
-  page: z.preprocess(blank, z.coerce.number().int().min(1).max(100_000).default(1)),
-  pageSize: z.preprocess(blank, z.coerce.number().int().min(1).max(100).default(PROGRAM_PAGE_SIZE)),
+  page: z.preprocess(blank, wholeNumber(1, 100_000).default(1)),
+  pageSize: z.preprocess(blank, wholeNumber(1, 100).default(PROGRAM_PAGE_SIZE)),
 });
 export type ProgramListQuery = z.infer<typeof programListSchema>;
 
@@ -110,9 +115,9 @@ export const tokenCreateSchema = z.object({ name: singleLine("a name", 100) });
 const workOffsetCode = z.string().trim().toUpperCase().pipe(workOffsetValuesSchema.keyType);
 export const workOffsetSetSchema = z.object({
   code: workOffsetCode,
-  x: z.number().finite(),
-  y: z.number().finite(),
-  z: z.number().finite(),
+  x: decimalNumber("Enter a number."),
+  y: decimalNumber("Enter a number."),
+  z: decimalNumber("Enter a number."),
 });
 export const workOffsetClearSchema = z.object({ code: workOffsetCode });
 
@@ -124,10 +129,13 @@ export const pushQuerySchema = z.object({
   title: z.preprocess(blank, singleLine("a title", 200).optional()),
   operation: z.preprocess(blank, singleLine("an operation", 100).optional()),
   note: z.preprocess(blank, multiLine("a note", 2000).optional()),
-  name: z.string().optional(),
+  name: z.string().max(1000).optional(),
 });
 
 export const outboxListSchema = z.object({
   state: z.preprocess(blank, z.enum(["pending", "sending", "sent", "failed"]).optional()),
-  page: z.preprocess(blank, z.coerce.number().int().min(1).max(100_000).default(1)),
+  page: z.preprocess(blank, wholeNumber(1, 100_000).default(1)),
 });
+
+/** GET /api/revisions/{a}/compare/{b}: unchanged lines shown around each change. */
+export const compareQuerySchema = z.object({ context: z.preprocess(blank, wholeNumber(0, 50).optional()) });

@@ -267,7 +267,8 @@ async function main() {
       await new Promise((r) => app!.once("exit", r));
     }
     await db.end();
-    await admin.query(`drop database if exists ${BENCH_DB} with (force)`);
+    // BENCH_KEEP=1 keeps the database for a look at query plans; the next run drops it anyway.
+    if (process.env.BENCH_KEEP !== "1") await admin.query(`drop database if exists ${BENCH_DB} with (force)`);
     await admin.end();
     if (!wasRunning) sh("bash scripts/pg.sh stop >/dev/null");
   }

@@ -6,7 +6,7 @@ import { and, eq, gt, isNull, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { sessions, users, type Role } from "@/db/schema";
 import { env } from "@/lib/env";
-import { recordEvent } from "@/lib/audit";
+import { recordRepeatedEvent } from "@/lib/audit";
 import { apiBearerToken } from "./api-context";
 import { AuthError } from "./errors";
 import { can, type Permission } from "./roles";
@@ -162,8 +162,21 @@ export async function requireUser(): Promise<CurrentUser> {
 export async function authorize(permission: Permission): Promise<CurrentUser> {
   const user = await requireUser();
   if (!can(user.role, permission)) {
-    await recordEvent({ actor: user, action: "access.refused", details: { permission, role: user.role }, ip: await requestIp() });
+    await recordRefusal(user, permission);
     throw new AuthError(403);
   }
   return user;
+}
+
+/** Audits a refusal for the wrong role; repeats by the same user for the same permission are rolled up. */
+export async function recordRefusal(user: CurrentUser, permission: Permission): Promise<void> {
+  const details = { permission, role: user.role };
+  await recordRepeatedEvent({
+    key: `access.refused|${user.id}|${permission}`,
+    actor: user,
+    action: "access.refused",
+    details,
+    summary: details,
+    ip: await requestIp(),
+  });
 }

@@ -2,10 +2,11 @@ import "server-only";
 import { eq, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { users, type Role } from "@/db/schema";
-import { recordEvent } from "@/lib/audit";
+import { recordEvent, recordRepeatedEvent } from "@/lib/audit";
+import { rememberDevice, trustedDeviceId } from "./device";
 import { burnPasswordCheck, verifyPassword } from "./password";
 import { endSession, requestIp, startSession } from "./session";
-import { clearSignInFailures, recordSignInFailure, signInRetryAfter } from "./throttle";
+import { throttledPasswordCheck, tooManyTries } from "./throttle";
 
 export type SignInResult =
   | { ok: true; user: { email: string; name: string; role: Role } }
@@ -15,17 +16,13 @@ export type SignInResult =
 const BAD_CREDENTIALS = "The e-mail or the password is wrong.";
 
 /**
- * Checks the credentials and starts a session. An unknown e-mail, a disabled account and a wrong
- * password answer alike; a throttled account or address is refused before the password is looked at.
+ * Checks the credentials under the sign-in limits and starts a session. An unknown e-mail, a
+ * disabled account and a wrong password answer alike and cost the same; a throttled attempt is
+ * refused before any password is checked. A success trusts this browser for the account.
  */
 export async function signIn(emailRaw: string, password: string): Promise<SignInResult> {
   const email = emailRaw.trim().toLowerCase();
   const ip = await requestIp();
-  const retryAfter = await signInRetryAfter(email, ip);
-  if (retryAfter > 0) {
-    await recordEvent({ actor: null, action: "session.sign-in-throttled", objectType: "user", details: { email, retryAfter }, ip });
-    return { ok: false, status: 429, message: `Too many failed sign-ins. Try again in ${retryAfter} s.`, retryAfter };
-  }
   const [user] = await db()
     .select({
       id: users.id,
@@ -39,21 +36,41 @@ export async function signIn(emailRaw: string, password: string): Promise<SignIn
     .from(users)
     .where(eq(sql`lower(${users.email})`, email))
     .limit(1);
-  const passwordOk = user ? await verifyPassword(user.passwordHash, password) : (await burnPasswordCheck(password), false);
-  if (!user || !passwordOk || user.disabled) {
-    await recordSignInFailure(email, ip);
+  const trustedDevice = await trustedDeviceId(user);
+  let passwordOk = false;
+  const outcome = await throttledPasswordCheck({ account: email, ip, trustedDevice }, async () => {
+    passwordOk = user ? await verifyPassword(user.passwordHash, password) : (await burnPasswordCheck(password), false);
+    return passwordOk && !user!.disabled;
+  });
+  if (outcome.status === "throttled") {
+    await recordRepeatedEvent({
+      key: `session.sign-in-throttled|${ip ?? "unknown"}`,
+      actor: null,
+      action: "session.sign-in-throttled",
+      objectType: "user",
+      details: { email, retryAfter: outcome.retryAfter },
+      sample: { name: "emails", value: email },
+      ip,
+    });
+    return { ok: false, status: 429, message: tooManyTries(outcome.retryAfter), retryAfter: outcome.retryAfter };
+  }
+  if (outcome.status === "wrong" || !user) {
     await recordEvent({
       actor: user ? { id: user.id, email: user.email } : null,
       action: "session.sign-in-failed",
       objectType: "user",
       objectId: user?.id,
-      details: { email, reason: !user ? "unknown-email" : user.disabled && passwordOk ? "disabled" : "wrong-password" },
+      details: {
+        email,
+        reason: !user ? "unknown-email" : user.disabled && passwordOk ? "disabled" : "wrong-password",
+        ...(trustedDevice && { trustedDevice: true }),
+      },
       ip,
     });
     return { ok: false, status: 401, message: BAD_CREDENTIALS };
   }
-  await clearSignInFailures(email);
   await startSession(user);
+  await rememberDevice(user);
   await recordEvent({ actor: user, action: "session.sign-in", objectType: "user", objectId: user.id, ip });
   return { ok: true, user: { email: user.email, name: user.name, role: user.role } };
 }

@@ -6,6 +6,7 @@
  * engine's way: CR, LF and CRLF each end a line; the line ending itself is not compared.
  */
 import diffSequencesModule from "diff-sequences";
+import { countLines } from "../program-file";
 
 // diff-sequences is CommonJS with `exports.default`; bundlers unwrap it, Node's ESM loader does not.
 type DiffSequence = typeof diffSequencesModule;
@@ -62,17 +63,7 @@ interface Lines {
 /** Splits into lines and hashes each (FNV-1a, 32 bits); equality is always confirmed on the bytes. */
 export function splitLines(bytes: Uint8Array): Lines {
   const n = bytes.length;
-  let count = 0;
-  for (let i = 0; i < n; i++) {
-    const c = bytes[i]!;
-    if (c === 10) count++;
-    else if (c === 13) {
-      count++;
-      if (bytes[i + 1] === 10) i++;
-    }
-  }
-  const last = n > 0 ? bytes[n - 1]! : 10;
-  if (last !== 10 && last !== 13) count++;
+  const count = countLines(bytes);
   const start = new Uint32Array(count);
   const end = new Uint32Array(count);
   const hash = new Int32Array(count);

@@ -3,25 +3,29 @@ import { and, count, desc, eq, gte, ilike, lt, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "@/db";
 import { auditEvents } from "@/db/schema";
+import { flushAuditRollups, openAuditRollups, type OpenRollup } from "@/lib/audit";
 import { authorize } from "@/lib/auth/session";
 import { likeEscape } from "@/lib/dal/sql";
+import { calendarDate, decimalNumber, singleLineText } from "@/lib/validation";
 
 export const AUDIT_PAGE_SIZE = 50;
 
-const dateOnly = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/, "Use YYYY-MM-DD.")
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), "Not a date.");
 const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+const optional = <T extends z.ZodType>(schema: T) => z.preprocess(blankToUndefined, schema.optional());
 
 export const auditFilterSchema = z.object({
-  actor: z.preprocess(blankToUndefined, z.string().trim().max(254).optional()),
-  action: z.preprocess(blankToUndefined, z.string().trim().max(64).optional()),
-  objectType: z.preprocess(blankToUndefined, z.string().trim().max(32).optional()),
-  objectId: z.preprocess(blankToUndefined, z.string().trim().max(64).optional()),
-  from: z.preprocess(blankToUndefined, dateOnly.optional()),
-  to: z.preprocess(blankToUndefined, dateOnly.optional()),
-  page: z.preprocess(blankToUndefined, z.coerce.number().int().min(1).max(100_000).default(1)),
+  actor: optional(singleLineText({ max: 254 })),
+  action: optional(singleLineText({ max: 64 })),
+  objectType: optional(singleLineText({ max: 32 })),
+  objectId: optional(singleLineText({ max: 64 })),
+  from: optional(calendarDate()),
+  to: optional(calendarDate()),
+  page: z.preprocess(
+    blankToUndefined,
+    decimalNumber("Use a page number.")
+      .refine((n) => Number.isInteger(n) && n >= 1 && n <= 100_000, "Use a page number from 1 to 100000.")
+      .default(1),
+  ),
 });
 
 export type AuditFilter = z.infer<typeof auditFilterSchema>;
@@ -37,9 +41,29 @@ export interface AuditRow {
   ip: string | null;
 }
 
-/** One page of events, newest first; dates are whole UTC days, `to` included. */
-export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number }> {
+/** The columns of an AuditRow (`at` still a Date: map rows with toAuditRow). */
+export const auditRowColumns = {
+  id: auditEvents.id,
+  at: auditEvents.at,
+  actorEmail: auditEvents.actorEmail,
+  action: auditEvents.action,
+  objectType: auditEvents.objectType,
+  objectId: auditEvents.objectId,
+  details: auditEvents.details,
+  ip: auditEvents.ip,
+};
+
+export const toAuditRow = (r: Omit<AuditRow, "at"> & { at: Date }): AuditRow => ({ ...r, at: r.at.toISOString() });
+
+/**
+ * One page of events, newest first; dates are whole UTC days, `to` included. Closed roll-up windows
+ * are written first; `counting` lists the open ones (repeats counted, summary not yet written).
+ */
+export async function listAuditEvents(
+  filter: AuditFilter,
+): Promise<{ rows: AuditRow[]; total: number; page: number; pageSize: number; counting: OpenRollup[] }> {
   await authorize("readAudit");
+  await flushAuditRollups();
   const where: SQL[] = [];
 
   if (filter.actor) where.push(ilike(auditEvents.actorEmail, `%${likeEscape(filter.actor)}%`));
@@ -49,29 +73,22 @@ export async function listAuditEvents(filter: AuditFilter): Promise<{ rows: Audi
   if (filter.from) where.push(gte(auditEvents.at, new Date(`${filter.from}T00:00:00Z`)));
   if (filter.to) where.push(lt(auditEvents.at, new Date(Date.parse(`${filter.to}T00:00:00Z`) + 86_400_000)));
   const cond = where.length ? and(...where) : undefined;
-  const [rows, [totalRow]] = await Promise.all([
+  const [rows, [totalRow], counting] = await Promise.all([
     db()
-      .select({
-        id: auditEvents.id,
-        at: auditEvents.at,
-        actorEmail: auditEvents.actorEmail,
-        action: auditEvents.action,
-        objectType: auditEvents.objectType,
-        objectId: auditEvents.objectId,
-        details: auditEvents.details,
-        ip: auditEvents.ip,
-      })
+      .select(auditRowColumns)
       .from(auditEvents)
       .where(cond)
       .orderBy(desc(auditEvents.at), desc(auditEvents.id))
       .limit(AUDIT_PAGE_SIZE)
       .offset((filter.page - 1) * AUDIT_PAGE_SIZE),
     db().select({ n: count() }).from(auditEvents).where(cond),
+    openAuditRollups(),
   ]);
   return {
-    rows: rows.map((r) => ({ ...r, at: r.at.toISOString() })),
+    rows: rows.map(toAuditRow),
     total: totalRow?.n ?? 0,
     page: filter.page,
     pageSize: AUDIT_PAGE_SIZE,
+    counting,
   };
 }

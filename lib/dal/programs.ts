@@ -18,8 +18,8 @@ import {
 import { recordEvent } from "@/lib/audit";
 import { RequestError } from "@/lib/auth/errors";
 import { authorize, requestIp, type CurrentUser } from "@/lib/auth/session";
-import type { AuditRow } from "@/lib/dal/audit";
-import { iso, likeEscape } from "@/lib/dal/sql";
+import { auditRowColumns, toAuditRow, type AuditRow } from "@/lib/dal/audit";
+import { likeEscape } from "@/lib/dal/sql";
 import { decider, revisionSummaryColumns, toRevisionSummary, uploader, type RevisionSummary, type UserRef } from "@/lib/dal/views";
 import { isUniqueViolation } from "@/lib/db-errors";
 import { requestAnalysis } from "@/lib/jobs/queue";
@@ -336,16 +336,7 @@ export async function listProgramEvents(programId: number, limit = 200): Promise
   const revIds = await db().select({ id: revisions.id }).from(revisions).where(eq(revisions.programId, programId));
   const revisionIds = revIds.map((r) => String(r.id));
   const rows = await db()
-    .select({
-      id: auditEvents.id,
-      at: auditEvents.at,
-      actorEmail: auditEvents.actorEmail,
-      action: auditEvents.action,
-      objectType: auditEvents.objectType,
-      objectId: auditEvents.objectId,
-      details: auditEvents.details,
-      ip: auditEvents.ip,
-    })
+    .select(auditRowColumns)
     .from(auditEvents)
     .where(
       or(
@@ -357,7 +348,7 @@ export async function listProgramEvents(programId: number, limit = 200): Promise
     )
     .orderBy(desc(auditEvents.at), desc(auditEvents.id))
     .limit(limit);
-  return rows.map((r) => ({ ...r, at: iso(r.at)! }));
+  return rows.map(toAuditRow);
 }
 
 /**

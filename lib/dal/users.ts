@@ -5,8 +5,11 @@ import { sessions, users, type Role } from "@/db/schema";
 import { recordEvent } from "@/lib/audit";
 import { isUniqueViolation } from "@/lib/db-errors";
 import { RequestError } from "@/lib/auth/errors";
-import { hashPassword, verifyPassword } from "@/lib/auth/password";
+import { rememberDevice } from "@/lib/auth/device";
+import { hashPassword } from "@/lib/auth/password";
+import { requireOwnPassword } from "@/lib/auth/reauth";
 import { authorize, requestIp, requireUser } from "@/lib/auth/session";
+import { clearAccountLimits } from "@/lib/auth/throttle";
 
 export interface UserListItem {
   id: number;
@@ -83,7 +86,7 @@ export async function updateUser(
   }
   const passwordHash = change.password ? await hashPassword(change.password) : undefined;
   const ip = await requestIp();
-  return db().transaction(async (tx) => {
+  const row = await db().transaction(async (tx) => {
     const [before] = await tx
       .select({ role: users.role, disabled: users.disabled, name: users.displayName })
       .from(users)
@@ -126,15 +129,18 @@ export async function updateUser(
     await recordEvent({ actor, action, objectType: "user", objectId: id, details, ip }, tx);
     return toItem(row);
   });
+  // A reset is also how an admin lets a user back in whom failed guesses from elsewhere hold back.
+  if (passwordHash !== undefined) await clearAccountLimits(row.email);
+  return row;
 }
 
-/** The signed-in user's own password; every session of theirs ends, and the caller signs in again. */
+/**
+ * The signed-in user's own password, after re-entering the current one (counted and audited like a
+ * sign-in). Every session of theirs ends and the caller signs in again; this browser stays trusted.
+ */
 export async function changeOwnPassword(currentPassword: string, newPassword: string): Promise<void> {
   const me = await requireUser();
-  const [row] = await db().select({ hash: users.passwordHash }).from(users).where(eq(users.id, me.id));
-  if (!row || !(await verifyPassword(row.hash, currentPassword))) {
-    throw new RequestError(422, "The current password is wrong.", { currentPassword: ["The current password is wrong."] });
-  }
+  await requireOwnPassword(me, currentPassword, "password-change", "currentPassword");
   const passwordHash = await hashPassword(newPassword);
   const ip = await requestIp();
   await db().transaction(async (tx) => {
@@ -145,4 +151,5 @@ export async function changeOwnPassword(currentPassword: string, newPassword: st
     await tx.update(sessions).set({ revokedAt: sql`now()` }).where(eq(sessions.userId, me.id));
     await recordEvent({ actor: me, action: "user.password-change", objectType: "user", objectId: me.id, ip }, tx);
   });
+  await rememberDevice({ id: me.id, passwordHash });
 }

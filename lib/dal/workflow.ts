@@ -5,7 +5,7 @@ import { programs, revisionAnalyses, revisionFindings, revisions, signatures, us
 import { recordEvent } from "@/lib/audit";
 import { RequestError } from "@/lib/auth/errors";
 import { authorize, requestIp, type CurrentUser } from "@/lib/auth/session";
-import { checkSignerPassword } from "@/lib/auth/signature";
+import { requireOwnPassword } from "@/lib/auth/reauth";
 import { getRevision, type RevisionDetail } from "@/lib/dal/revisions";
 import { env } from "@/lib/env";
 import { queueMail } from "@/lib/mail/outbox";
@@ -117,7 +117,8 @@ export async function submitRevision(id: number, comment: string): Promise<Revis
  */
 export async function releaseRevision(id: number, input: ReleaseInput): Promise<RevisionDetail> {
   const actor = await authorize("reviewRevisions");
-  await checkSignerPassword(actor, input.password, `release revision ${id}`);
+  // The electronic signature: the lead's own password again, counted on the sign-in limits and audited.
+  await requireOwnPassword(actor, input.password, "revision-release");
   const ip = await requestIp();
   await db().transaction(async (tx) => {
     const rev = await lockRevision(tx, id);

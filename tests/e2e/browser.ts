@@ -110,3 +110,17 @@ export function useFreshPage(): BrowserHolder {
   });
   return holder;
 }
+
+/** Signs in over the JSON API and returns the Cookie header every cookie the answer set makes up. */
+export async function apiSignIn(email: string, password: string = DEMO_PASSWORD): Promise<string> {
+  const res = await fetch(appUrl("/api/session"), {
+    method: "POST",
+    headers: { "content-type": "application/json" },
+    body: JSON.stringify({ email, password }),
+  });
+  if (res.status !== 200) throw new Error(`sign-in as ${email} answered ${res.status}`);
+  return res.headers
+    .getSetCookie()
+    .map((c) => c.split(";")[0])
+    .join("; ");
+}

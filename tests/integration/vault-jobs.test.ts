@@ -128,9 +128,9 @@ describe("analysis jobs", () => {
     expect(a!.engineVersion).toBe(ENGINE_VERSION);
   });
 
-  it("picks up again the job of a worker killed mid-job", async () => {
-    const fast = { ANALYSIS_TIMEOUT_SECONDS: "3", JOB_MAINTENANCE_SECONDS: "1", JOB_POLL_SECONDS: "0.5" };
-    const slow = spawnWorker({ ...fast, CYCLEGATE_ANALYSIS_DELAY_MS: "60000" });
+  /** Uploads while only a slow worker process runs, and kills it with SIGKILL once the analysis is running. */
+  async function uploadAndKillWorkerMidJob(settings: Record<string, string>): Promise<number> {
+    const slow = spawnWorker({ ...settings, CYCLEGATE_ANALYSIS_DELAY_MS: "60000" });
     await started(slow);
     await actAs("programmer");
     const { programId } = await makeProgram();
@@ -139,6 +139,12 @@ describe("analysis jobs", () => {
     slow.kill("SIGKILL");
     await new Promise((r) => slow.once("exit", r));
     expect((await analysisOf(rev.id))!.state).toBe("running");
+    return rev.id;
+  }
+
+  it("picks up again the job of a worker killed mid-job", async () => {
+    const fast = { ANALYSIS_TIMEOUT_SECONDS: "3", JOB_MAINTENANCE_SECONDS: "1", JOB_POLL_SECONDS: "0.5" };
+    const rev = { id: await uploadAndKillWorkerMidJob(fast) };
     // Another worker: the queue's maintenance fails the dead job by timeout and retries it.
     extraWorkers.push(await startWorker({ env: workerEnv(fast), log: () => undefined }));
     const a = await waitForAnalysis(rev.id, ["done"], 30_000);
@@ -147,13 +153,7 @@ describe("analysis jobs", () => {
 
   it("marks the analysis failed with its reason, never left running, when the retries are used up", async () => {
     const once = { ANALYSIS_TIMEOUT_SECONDS: "2", ANALYSIS_RETRIES: "0", JOB_MAINTENANCE_SECONDS: "1", JOB_POLL_SECONDS: "0.5" };
-    const slow = spawnWorker({ ...once, CYCLEGATE_ANALYSIS_DELAY_MS: "60000" });
-    await started(slow);
-    await actAs("programmer");
-    const { programId } = await makeProgram();
-    const rev = await upload(programId, ncProgram());
-    await waitForAnalysis(rev.id, ["running"]);
-    slow.kill("SIGKILL");
+    const rev = { id: await uploadAndKillWorkerMidJob(once) };
     extraWorkers.push(await startWorker({ env: workerEnv(once), log: () => undefined }));
     const a = await waitForAnalysis(rev.id, ["failed"], 30_000);
     expect(a!.error).toMatch(/did not finish after 1 attempts/);

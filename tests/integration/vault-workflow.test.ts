@@ -69,7 +69,7 @@ describe("workflow", () => {
     const res = await post(releaseRoute.POST, revisionId, { password: "not-my-password", comment: "ok" });
     expect(res.status).toBe(422);
     expect(((await res.json()) as { issues: { fieldErrors: Record<string, string[]> } }).issues.fieldErrors.password).toEqual(["The password is wrong."]);
-    const [failed] = await db().select({ n: count() }).from(auditEvents).where(and(eq(auditEvents.action, "signature.password-failed"), eq(auditEvents.actorId, lead!.id)));
+    const [failed] = await db().select({ n: count() }).from(auditEvents).where(and(eq(auditEvents.action, "session.reauth-failed"), eq(auditEvents.actorId, lead!.id)));
     expect(failed!.n).toBe(1);
     const ok = await post(releaseRoute.POST, revisionId, { password: TEST_PASSWORD, comment: "Dry run fine." });
     expect(ok.status).toBe(200);

@@ -21,7 +21,7 @@ export default async function AccountPage() {
         </p>
         <h2 className="text-lg font-semibold">Change password</h2>
         <p className="text-sm text-ink-soft">Changing it signs you out everywhere, this device included.</p>
-        <PasswordForm />
+        <PasswordForm email={user.email} />
       </section>
       {tokens && (
         <section className="space-y-4 rounded-lg border border-rule bg-panel p-6" aria-labelledby="tokens">

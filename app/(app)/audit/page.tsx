@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { auditFilterSchema, listAuditEvents } from "@/lib/dal/audit";
 
 export const metadata: Metadata = { title: "Audit record" };
@@ -18,13 +17,12 @@ const FILTERS = [
 ] as const;
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<Search> }) {
-  const { allowed } = await pageAccess("readAudit");
-  if (!allowed) return <Forbidden what="reading the audit record" />;
+  await requirePagePermission("readAudit");
   const sp = await searchParams;
   const flat = Object.fromEntries(Object.entries(sp).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v]));
   const parsed = auditFilterSchema.safeParse(flat);
   const filter = parsed.success ? parsed.data : { page: 1 };
-  const { rows, total, page, pageSize } = await listAuditEvents(filter);
+  const { rows, total, page, pageSize, counting } = await listAuditEvents(filter);
   const pages = Math.max(1, Math.ceil(total / pageSize));
   const link = (p: number) => {
     const q = new URLSearchParams();
@@ -54,8 +52,24 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       </form>
       {!parsed.success && (
         <p role="alert" className="rounded-md bg-bad/10 px-3 py-2 text-sm text-bad">
-          Some filters were not understood and were ignored: {parsed.error.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join("; ")}
+          Some filters were not understood and were ignored: {parsed.error.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join(" ")}
         </p>
+      )}
+      {counting.length > 0 && (
+        <section aria-label="Still being counted" className="rounded-lg border border-rule bg-panel p-4 text-sm">
+          <h2 className="font-semibold">Repeats still being counted</h2>
+          <p className="text-ink-soft">The first of each is in the record below; one row with the count follows when its window ends.</p>
+          <ul className="mt-2 space-y-1">
+            {counting.map((c) => (
+              <li key={`${c.action}|${c.actorEmail}|${c.ip}|${c.windowEnd}`}>
+                <span className="font-medium">{c.action}</span> by {c.actorEmail ?? "someone signed out"} from{" "}
+                <span className="font-mono text-xs">{c.ip ?? "an unknown address"}</span>: {c.repeated} more, the last at{" "}
+                <span className="font-mono text-xs">{c.lastAt.slice(11, 19)}</span>; counted until{" "}
+                <span className="font-mono text-xs">{c.windowEnd.slice(11, 19)}</span> UTC
+              </li>
+            ))}
+          </ul>
+        </section>
       )}
       <p className="text-sm text-ink-soft">
         {total} event{total === 1 ? "" : "s"} · page {page} of {pages}

@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can } from "@/lib/auth/roles";
 import { listMachines } from "@/lib/dal/machines";
 
@@ -10,8 +9,7 @@ export const metadata: Metadata = { title: "Machines" };
 const fmt = (n: number) => n.toLocaleString("en", { maximumFractionDigits: 3 });
 
 export default async function MachinesPage() {
-  const { user, allowed } = await pageAccess("readMachines");
-  if (!allowed) return <Forbidden what="viewing machines" />;
+  const user = await requirePagePermission("readMachines");
   const machines = await listMachines();
   const editable = can(user.role, "manageMachines");
   return (

@@ -2,23 +2,19 @@
 
 import { redirect } from "next/navigation";
 import { z } from "zod";
+import { formString } from "@/lib/actions";
 import type { FormState } from "@/lib/form-state";
 import { signIn } from "@/lib/auth/sign-in";
+import { safeRedirectPath } from "@/lib/safe-redirect";
 import { signInSchema } from "@/lib/validation";
-
-/** Only same-site paths, so a crafted link can't send a fresh session elsewhere. */
-function safeNext(raw: FormDataEntryValue | null): string {
-  const s = typeof raw === "string" ? raw : "";
-  return s.startsWith("/") && !s.startsWith("//") && !s.startsWith("/\\") ? s : "/";
-}
 
 export async function signInAction(_prev: FormState, fd: FormData): Promise<FormState> {
   const parsed = signInSchema.safeParse({ email: fd.get("email"), password: fd.get("password") });
-  const email = typeof fd.get("email") === "string" ? String(fd.get("email")) : "";
+  const email = formString(fd, "email") ?? "";
   if (!parsed.success) {
     return {
       status: 422,
-      message: "Enter your e-mail and password.",
+      message: "Check your e-mail and password.",
       fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]>,
       values: { email },
     };
@@ -31,5 +27,5 @@ export async function signInAction(_prev: FormState, fd: FormData): Promise<Form
     return { status: 500, message: "Sign-in is not available right now. Try again shortly.", values: { email } };
   }
   if (!result.ok) return { status: result.status, message: result.message, values: { email } };
-  redirect(safeNext(fd.get("next")));
+  redirect(safeRedirectPath(fd.get("next")));
 }

@@ -1,15 +1,15 @@
 import type { Metadata } from "next";
 import { redirect } from "next/navigation";
 import { getCurrentUser } from "@/lib/auth/session";
+import { safeRedirectPath } from "@/lib/safe-redirect";
 import { SignInForm } from "./sign-in-form";
 
 export const metadata: Metadata = { title: "Sign in" };
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string | string[]; changed?: string | string[] }> }) {
-  if (await getCurrentUser()) redirect("/");
   const sp = await searchParams;
-  const raw = sp.next;
-  const next = typeof raw === "string" && raw.startsWith("/") && !raw.startsWith("//") ? raw : "/";
+  const next = safeRedirectPath(sp.next);
+  if (await getCurrentUser()) redirect(next);
   return (
     <main className="mx-auto flex min-h-dvh max-w-md flex-col justify-center px-6 py-12">
       <div className="mb-8">

@@ -2,7 +2,7 @@
 
 import { revalidatePath } from "next/cache";
 import { redirect } from "next/navigation";
-import { runAction, type FormState } from "@/lib/actions";
+import { actionId, runAction, type FormState } from "@/lib/actions";
 import { authorize } from "@/lib/auth/session";
 import { createMachine, updateMachine } from "@/lib/dal/machines";
 import { formBoolean, machineSchema } from "@/lib/validation";
@@ -41,10 +41,10 @@ export async function createMachineAction(_prev: FormState, fd: FormData): Promi
   redirect(`/machines?added=${id}`);
 }
 
-export async function updateMachineAction(id: number, _prev: FormState, fd: FormData): Promise<FormState> {
+export async function updateMachineAction(id: unknown, _prev: FormState, fd: FormData): Promise<FormState> {
   return runAction(fd, async () => {
     await authorize("manageMachines");
-    const m = await updateMachine(id, machineFromForm(fd));
+    const m = await updateMachine(actionId(id), machineFromForm(fd));
     revalidatePath("/machines");
     return { status: 200, message: `Saved ${m.name}.` };
   });

@@ -1,8 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
 import { formatWhen } from "@/components/vault/format";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { listOutbox } from "@/lib/dal/outbox";
 import { parseSearch, type SearchParams } from "@/lib/search-params";
 import { outboxListSchema } from "@/lib/vault-validation";
@@ -17,8 +16,7 @@ const STATES = [
 ] as const;
 
 export default async function OutboxPage({ searchParams }: { searchParams: Promise<SearchParams> }) {
-  const { allowed } = await pageAccess("readOutbox");
-  if (!allowed) return <Forbidden what="reading the mail outbox" />;
+  await requirePagePermission("readOutbox");
   const { query } = parseSearch(outboxListSchema, await searchParams);
   const { messages, counts, total, page, pageSize } = await listOutbox(query);
   const pages = Math.max(1, Math.ceil(total / pageSize));

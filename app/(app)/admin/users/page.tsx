@@ -1,15 +1,13 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { listUsers } from "@/lib/dal/users";
 
 export const metadata: Metadata = { title: "Users" };
 
 export default async function UsersPage() {
-  const { allowed } = await pageAccess("manageUsers");
-  if (!allowed) return <Forbidden what="managing users" />;
+  await requirePagePermission("manageUsers");
   const users = await listUsers();
   return (
     <div className="space-y-4">

@@ -1,10 +1,9 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { Forbidden } from "@/components/ui/forbidden";
 import { formatNumber, formatWhen } from "@/components/vault/format";
 import { ClearWorkOffsetButton, SetWorkOffsetForm } from "@/components/vault/work-offset-forms";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can } from "@/lib/auth/roles";
 import { getMachine } from "@/lib/dal/machines";
 import { listWorkOffsets } from "@/lib/dal/work-offsets";
@@ -14,8 +13,7 @@ import { clearWorkOffsetAction, setWorkOffsetAction } from "../actions";
 export const metadata: Metadata = { title: "Machine" };
 
 export default async function MachinePage({ params }: { params: Promise<{ id: string }> }) {
-  const { user, allowed } = await pageAccess("readMachines");
-  if (!allowed) return <Forbidden what="viewing machines" />;
+  const user = await requirePagePermission("readMachines");
   const id = pageId((await params).id);
   if (!id) notFound();
   const machine = await getMachine(id);

@@ -3,7 +3,6 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
-import { Forbidden } from "@/components/ui/forbidden";
 import { ComparePicker } from "@/components/vault/compare-picker";
 import { formatNumber } from "@/components/vault/format";
 import { ProgramEvents, SignatureHistory } from "@/components/vault/program-history";
@@ -11,7 +10,7 @@ import { EditProgramForm } from "@/components/vault/program-forms";
 import { RefreshWhenChecked } from "@/components/vault/refresh-when-checked";
 import { RevisionList } from "@/components/vault/revision-list";
 import { UploadPanel } from "@/components/vault/upload-panel";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can } from "@/lib/auth/roles";
 import { getMachine, listMachines } from "@/lib/dal/machines";
 import { listProgramSignatures } from "@/lib/dal/pages-program";
@@ -29,8 +28,7 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 }
 
 export default async function ProgramPage({ params }: Props) {
-  const { user, allowed } = await pageAccess("readPrograms");
-  if (!allowed) return <Forbidden what="reading programs" />;
+  const user = await requirePagePermission("readPrograms");
   const id = pageId((await params).id);
   if (!id) notFound();
   const program = await getProgram(id);

@@ -1,8 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
 import { NewProgramPanels } from "@/components/vault/program-forms";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { listMachines } from "@/lib/dal/machines";
 import { listParts } from "@/lib/dal/parts";
 import { createPartAction, createProgramAction } from "../actions";
@@ -10,8 +9,7 @@ import { createPartAction, createProgramAction } from "../actions";
 export const metadata: Metadata = { title: "New program" };
 
 export default async function NewProgramPage() {
-  const { allowed } = await pageAccess("writePrograms");
-  if (!allowed) return <Forbidden what="creating programs" />;
+  await requirePagePermission("writePrograms");
   const [parts, machines] = await Promise.all([listParts(), listMachines()]);
   return (
     <div className="space-y-4">

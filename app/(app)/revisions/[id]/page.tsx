@@ -3,7 +3,6 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
-import { Forbidden } from "@/components/ui/forbidden";
 import { BoundsList, OffsetTable, ToolTable, type StoredResult } from "@/components/vault/analysis-tables";
 import { BackplotSlot } from "@/components/vault/backplot-slot";
 import { CodePane } from "@/components/vault/code-pane";
@@ -15,7 +14,7 @@ import { RevisionWorkspace } from "@/components/vault/revision-workspace";
 import { AnalysisBadge, StatusBadge } from "@/components/vault/status-badge";
 import { TimeChart } from "@/components/vault/time-chart";
 import { WorkflowPanel } from "@/components/vault/workflow-panel";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can as roleCan } from "@/lib/auth/roles";
 import { programRevisions } from "@/lib/dal/programs";
 import { getRevision, type RevisionDetail } from "@/lib/dal/revisions";
@@ -46,8 +45,7 @@ function releaseBlocked(rev: RevisionDetail, userId: number, role: Parameters<ty
 }
 
 export default async function RevisionPage({ params, searchParams }: Props) {
-  const { user, allowed } = await pageAccess("readPrograms");
-  if (!allowed) return <Forbidden what="reading programs" />;
+  const user = await requirePagePermission("readPrograms");
   const id = pageId((await params).id);
   if (!id) notFound();
   const rev = await getRevision(id, { withResult: true });

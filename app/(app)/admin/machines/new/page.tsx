@@ -1,14 +1,12 @@
 import type { Metadata } from "next";
 import { MachineForm } from "@/components/admin/machine-form";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { createMachineAction } from "../actions";
 
 export const metadata: Metadata = { title: "Add machine" };
 
 export default async function NewMachinePage() {
-  const { allowed } = await pageAccess("manageMachines");
-  if (!allowed) return <Forbidden what="adding machines" />;
+  await requirePagePermission("manageMachines");
   return (
     <section className="max-w-4xl space-y-4 rounded-lg border border-rule bg-panel p-6">
       <h1 className="text-2xl font-semibold">Add machine</h1>

@@ -1,19 +1,18 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { DisableUserForm, EditUserForm, ResetPasswordForm } from "@/components/admin/user-forms";
-import { Forbidden } from "@/components/ui/forbidden";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
+import { positiveIdFromText } from "@/lib/validation";
 import { getUser } from "@/lib/dal/users";
 import { resetPasswordAction, setUserDisabledAction, updateUserAction } from "../actions";
 
 export const metadata: Metadata = { title: "User" };
 
 export default async function UserPage({ params }: { params: Promise<{ id: string }> }) {
-  const { user: me, allowed } = await pageAccess("manageUsers");
-  if (!allowed) return <Forbidden what="managing users" />;
-  const raw = (await params).id;
-  if (!/^[1-9]\d{0,8}$/.test(raw)) notFound();
-  const user = await getUser(Number(raw));
+  const me = await requirePagePermission("manageUsers");
+  const id = positiveIdFromText((await params).id);
+  if (id === null) notFound();
+  const user = await getUser(id);
   if (!user) notFound();
   const self = user.id === me.id;
   return (

@@ -3,12 +3,11 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
-import { Forbidden } from "@/components/ui/forbidden";
 import { AnalysisDiffView } from "@/components/vault/analysis-diff-view";
 import { DiffView } from "@/components/vault/diff-view";
 import { formatWhen, plural } from "@/components/vault/format";
 import { StatusBadge } from "@/components/vault/status-badge";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { getProgram } from "@/lib/dal/programs";
 import { compareRevisions } from "@/lib/dal/revisions";
 import { pageId } from "@/lib/page-params";
@@ -18,8 +17,7 @@ export const metadata: Metadata = { title: "Compare revisions" };
 type Props = { params: Promise<{ id: string; other: string }> };
 
 export default async function ComparePage({ params }: Props) {
-  const { allowed } = await pageAccess("readPrograms");
-  if (!allowed) return <Forbidden what="reading programs" />;
+  await requirePagePermission("readPrograms");
   const p = await params;
   const aId = pageId(p.id);
   const bId = pageId(p.other);

@@ -1,12 +1,11 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Forbidden } from "@/components/ui/forbidden";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
 import { ProgramFilters } from "@/components/vault/program-filters";
 import { ProgramsTable } from "@/components/vault/programs-table";
 import { plural } from "@/components/vault/format";
-import { pageAccess } from "@/lib/auth/page-guard";
+import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can } from "@/lib/auth/roles";
 import { listMachines } from "@/lib/dal/machines";
 import { listPrograms } from "@/lib/dal/programs";
@@ -25,8 +24,7 @@ const DEFAULT_DIR: Record<(typeof PROGRAM_SORTS)[number], "asc" | "desc"> = {
 };
 
 export default async function ProgramsPage({ searchParams }: { searchParams: Promise<SearchParams> }) {
-  const { user, allowed } = await pageAccess("readPrograms");
-  if (!allowed) return <Forbidden what="reading programs" />;
+  const user = await requirePagePermission("readPrograms");
   const { query, ignored } = parseSearch(programListSchema, await searchParams);
   const [list, machines] = await Promise.all([listPrograms(query), listMachines()]);
   const filtered = ["q", "part", "program", "machine", "status", "tool", "rule", "offset"].some(

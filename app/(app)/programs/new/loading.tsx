@@ -1,5 +1,0 @@
-import { PageSkeleton } from "@/components/ui/route-states";
-
-export default function Loading() {
-  return <PageSkeleton label="Loading the form" blocks={[20]} />;
-}
