@@ -122,7 +122,7 @@ export function UploadPanel(target: UploadTarget) {
         setJob((j) =>
           j && {
             ...j,
-            check: { state: "failed", reason: "not checked: the file is over the upload limit" },
+            check: { state: "refused", reason: `the file is over the upload limit of ${formatBytes(target.maxBytes)}` },
             send: { state: "refused", refusal: describeUploadRefusal(413, { error: `The file is larger than the limit of ${formatBytes(target.maxBytes)}.` }) },
           },
         );

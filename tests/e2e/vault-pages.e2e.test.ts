@@ -195,3 +195,23 @@ describe("vault pages in the browser", () => {
     await page.getByTestId("findings-new").getByText(/below safe Z/).waitFor();
   });
 });
+
+describe("vault pages refuse and miss with the right status", () => {
+  const b = useFreshPage();
+
+  it("answers 403 with the refusal for a programmer-only or admin-only page, and the missing page for an unknown id", async () => {
+    const { page } = b;
+    await signIn(page, "operator@cyclegate.test");
+    for (const path of ["/programs/new", "/admin/outbox"]) {
+      const res = await page.request.get(appUrl(path), { maxRedirects: 0 });
+      expect(res.status(), path).toBe(403);
+      expect(await res.text()).toContain("Not for your role");
+    }
+    await page.goto(appUrl("/programs/2147483647"));
+    await page.getByText("Program not found").waitFor();
+    await page.goto(appUrl("/revisions/2147483647"));
+    await page.getByText("Revision not found").waitFor();
+    await page.goto(appUrl("/revisions/abc/compare/1"));
+    await page.getByText("Revision to compare not found").waitFor();
+  });
+});
