@@ -255,6 +255,17 @@ export const programFiles = pgTable("program_files", {
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
 });
 
+/**
+ * Bytes of a large upload written while it is still arriving (COPY, streamed), before its SHA-256 is known. The
+ * upload's transaction moves them into program_files and deletes the row. UNLOGGED (custom migration): nothing here
+ * needs to survive a crash, and PostgreSQL empties the table after one.
+ */
+export const programFileUploads = pgTable("program_file_uploads", {
+  uploadId: uuid("upload_id").primaryKey(),
+  bytes: bytea("bytes").notNull(),
+  createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+});
+
 export const revisions = pgTable(
   "revisions",
   {

@@ -5,6 +5,7 @@ import busboy from "busboy";
 import { RequestError } from "@/lib/auth/errors";
 import { checkTextProgram } from "@/lib/gcode";
 import { cleanFileName, countLines } from "@/lib/program-file";
+import { STAGE_FROM_BYTES, stageUpload, type StagedUpload } from "@/lib/upload-staging";
 
 /** A program file received whole, hashed while it streamed in. */
 export interface ReceivedProgram {
@@ -14,6 +15,8 @@ export interface ReceivedProgram {
   lineCount: number;
   /** Cleaned display label. */
   fileName: string;
+  /** Set when the bytes were streamed into program_file_uploads as they arrived (large uploads). */
+  stagedUploadId?: string;
 }
 
 const SHA256_HEADER = "x-content-sha256";
@@ -53,7 +56,12 @@ function headerName(req: Request): string | null {
 }
 
 /** Reads a stream to the end, hashing and counting; stops with 413 at the first byte over `max`. */
-async function collect(stream: AsyncIterable<Uint8Array>, max: number, onAbort?: () => void): Promise<{ bytes: Buffer; sha256: string }> {
+async function collect(
+  stream: AsyncIterable<Uint8Array>,
+  max: number,
+  onAbort?: () => void,
+  onChunk?: (chunk: Uint8Array) => Promise<void>,
+): Promise<{ bytes: Buffer; sha256: string }> {
   const hash = createHash("sha256");
   const chunks: Buffer[] = [];
   let size = 0;
@@ -65,6 +73,7 @@ async function collect(stream: AsyncIterable<Uint8Array>, max: number, onAbort?:
     }
     hash.update(chunk);
     chunks.push(Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength));
+    if (onChunk) await onChunk(chunk);
   }
   return { bytes: Buffer.concat(chunks, size), sha256: hash.digest("hex") };
 }
@@ -122,6 +131,22 @@ export async function receiveProgram(req: Request, max: number): Promise<Receive
 }
 
 async function receive(req: Request, max: number): Promise<ReceivedProgram> {
+  let stage: StagedUpload | null = null;
+  try {
+    const file = await receiveInto(req, max, (s) => (stage = s));
+    if (stage) {
+      await (stage as StagedUpload).commit();
+      file.stagedUploadId = (stage as StagedUpload).uploadId;
+    }
+    return file;
+  } catch (e) {
+    await (stage as StagedUpload | null)?.abort();
+    throw e;
+  }
+}
+
+async function receiveInto(req: Request, max: number, staged: (s: StagedUpload) => void): Promise<ReceivedProgram> {
+  let stage: StagedUpload | null = null;
   const type = req.headers.get("content-type") ?? "application/octet-stream";
   const declared = req.headers.get("content-length");
   const sha = expectedSha(req);
@@ -130,11 +155,18 @@ async function receive(req: Request, max: number): Promise<ReceivedProgram> {
     received = await readMultipart(req, max);
   } else if (RAW_TYPES.test(type)) {
     if (declared !== null && Number(declared) > max) throw tooLarge(max);
-    const r = req.body ? await collect(req.body as unknown as AsyncIterable<Uint8Array>, max) : { bytes: Buffer.alloc(0), sha256: "" };
+    const length = declared !== null && /^\d+$/.test(declared) ? Number(declared) : null;
+    // A large body of known length is written to PostgreSQL while it arrives (see lib/upload-staging.ts).
+    stage = length !== null && length >= STAGE_FROM_BYTES && req.body ? await stageUpload(length) : null;
+    if (stage) staged(stage);
+    const r = req.body
+      ? await collect(req.body as unknown as AsyncIterable<Uint8Array>, max, undefined, stage ? (c) => stage!.write(c) : undefined)
+      : { bytes: Buffer.alloc(0), sha256: "" };
     // A body shorter than it said it would be was cut off: refuse it rather than store a piece.
-    if (declared !== null && /^\d+$/.test(declared) && Number(declared) !== r.bytes.length) {
+    if (length !== null && length !== r.bytes.length) {
       throw new RequestError(400, "The upload ended before all its bytes arrived.");
     }
+    stage?.end();
     received = { ...r, name: headerName(req) };
   } else {
     throw new RequestError(415, "Send the program as text/plain, application/octet-stream or multipart/form-data (field \"file\").");
@@ -153,4 +185,11 @@ async function receive(req: Request, max: number): Promise<ReceivedProgram> {
     lineCount: countLines(received.bytes),
     fileName: cleanFileName(received.name ?? headerName(req)),
   };
+}
+
+/** Server-Timing for an upload answer: receiving (with hashing and checks), storing, and whether it was streamed. */
+export function uploadTiming(t0: number, t1: number, file: ReceivedProgram): string {
+  const parts = [`receive;dur=${(t1 - t0).toFixed(1)}`, `store;dur=${(performance.now() - t1).toFixed(1)}`];
+  if (file.stagedUploadId) parts.push('staged;desc="streamed to the database while arriving"');
+  return parts.join(", ");
 }

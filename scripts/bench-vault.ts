@@ -150,6 +150,7 @@ async function main() {
     const uploadMs: number[] = [];
     const receiveMs: number[] = [];
     const storeMs: number[] = [];
+    let stagedAll = true;
     let peak = 0;
     let baseline = 0;
     let peakResetWorked = true;
@@ -176,6 +177,7 @@ async function main() {
       const timing = res.headers.get("server-timing") ?? "";
       receiveMs.push(Number(/receive;dur=([\d.]+)/.exec(timing)?.[1] ?? NaN));
       storeMs.push(Number(/store;dur=([\d.]+)/.exec(timing)?.[1] ?? NaN));
+      stagedAll &&= timing.includes("staged");
       let finished: Date | null = null;
       for (let i = 0; i < 6000 && !finished; i++) {
         const r = await db.query<{ state: string; finished_at: Date | null }>("select state, finished_at from revision_analyses where revision_id = $1", [id]);
@@ -195,6 +197,7 @@ async function main() {
     line("upload answered (201) after, median", ms(median(uploadMs)));
     line("  of which: body received, hashed and checked", ms(median(receiveMs)));
     line("  of which: stored (bytes, revision, job, audit)", ms(median(storeMs)));
+    line("  bytes streamed to PostgreSQL while arriving", stagedAll ? "yes" : "no");
     line("first byte sent -> analysis stored, median", ms(pipeline));
     line("ratio to the engine's own time (target <= 3x)", `${(pipeline / engine).toFixed(2)}x  ${verdict(pipeline <= 3 * engine)}`);
     line("app process resident memory before an upload", `${(baseline / 1048576).toFixed(0)} MiB`);

@@ -54,6 +54,12 @@ CREATE TABLE "parts" (
 	"updated_at" timestamp with time zone DEFAULT now() NOT NULL
 );
 --> statement-breakpoint
+CREATE TABLE "program_file_uploads" (
+	"upload_id" uuid PRIMARY KEY NOT NULL,
+	"bytes" "bytea" NOT NULL,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL
+);
+--> statement-breakpoint
 CREATE TABLE "program_files" (
 	"sha256" char(64) PRIMARY KEY NOT NULL,
 	"size" bigint NOT NULL,

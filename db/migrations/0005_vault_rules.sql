@@ -87,3 +87,12 @@ ALTER TABLE programs ADD CONSTRAINT programs_released_revision_fk
 CREATE EXTENSION IF NOT EXISTS pg_trgm;
 --> statement-breakpoint
 CREATE INDEX programs_search_trgm_idx ON programs USING gin ((lower(program_number || ' ' || title)) gin_trgm_ops);
+--> statement-breakpoint
+-- Staged bytes of uploads in progress: no WAL, emptied by crash recovery.
+ALTER TABLE program_file_uploads SET UNLOGGED;
+--> statement-breakpoint
+-- A program page lists the audit events of its revisions, deleted drafts included (their events name the program).
+CREATE INDEX audit_events_revision_program_idx ON audit_events ((details->>'programId')) WHERE object_type = 'revision';
+--> statement-breakpoint
+-- Staged bytes are written once and read once: no compression on the way in.
+ALTER TABLE program_file_uploads ALTER COLUMN bytes SET STORAGE EXTERNAL;

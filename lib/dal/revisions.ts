@@ -5,6 +5,7 @@ import {
   machines,
   parts,
   programFiles,
+  programFileUploads,
   programs,
   revisionAnalyses,
   revisionFindings,
@@ -83,6 +84,16 @@ export interface UploadMeta {
  * concurrent uploads get consecutive numbers with no gap, and a deleted draft's number is never reused.
  */
 export async function uploadRevision(programId: number, file: ReceivedProgram, meta: UploadMeta = {}): Promise<RevisionDetail> {
+  try {
+    return await storeRevision(programId, file, meta);
+  } catch (e) {
+    // Staged bytes of a refused upload go now (the worker also drops any left after an hour).
+    if (file.stagedUploadId) await db().delete(programFileUploads).where(eq(programFileUploads.uploadId, file.stagedUploadId));
+    throw e;
+  }
+}
+
+async function storeRevision(programId: number, file: ReceivedProgram, meta: UploadMeta): Promise<RevisionDetail> {
   const actor = await authorize("writePrograms");
   const ip = await requestIp();
   // Where the app process runs a worker, the analysis starts now, alongside the write (the job takes the result).
@@ -140,14 +151,28 @@ export async function uploadRevision(programId: number, file: ReceivedProgram, m
   return (await getRevision(id))!;
 }
 
-/** Inserts the file row unless it exists, and holds it (FOR KEY SHARE) so a concurrent clean-up cannot remove it. */
+/**
+ * Inserts the file row unless it exists, and holds it (FOR KEY SHARE) so a concurrent clean-up cannot remove it.
+ * Bytes already streamed into program_file_uploads are moved from there inside PostgreSQL, not sent again.
+ */
 async function storeFile(tx: Tx, file: ReceivedProgram): Promise<void> {
-  for (let attempt = 0; attempt < 3; attempt++) {
-    const held = await tx.execute(sql`select 1 from ${programFiles} where sha256 = ${file.sha256} for key share`);
-    if (held.rows.length > 0) return;
-    await tx.insert(programFiles).values({ sha256: file.sha256, size: file.size, bytes: file.bytes }).onConflictDoNothing();
+  try {
+    for (let attempt = 0; attempt < 3; attempt++) {
+      const held = await tx.execute(sql`select 1 from ${programFiles} where sha256 = ${file.sha256} for key share`);
+      if (held.rows.length > 0) return;
+      if (file.stagedUploadId) {
+        await tx.execute(sql`
+          insert into ${programFiles} (sha256, size, bytes)
+          select ${file.sha256}, ${file.size}, bytes from ${programFileUploads} where upload_id = ${file.stagedUploadId}
+          on conflict do nothing`);
+      } else {
+        await tx.insert(programFiles).values({ sha256: file.sha256, size: file.size, bytes: file.bytes }).onConflictDoNothing();
+      }
+    }
+    throw new Error("could not store the file");
+  } finally {
+    if (file.stagedUploadId) await tx.delete(programFileUploads).where(eq(programFileUploads.uploadId, file.stagedUploadId));
   }
-  throw new Error("could not store the file");
 }
 
 /** Removes a file row nobody refers to any more (inside the transaction that dropped the last reference). */

@@ -54,6 +54,12 @@ export async function prepareJobQueue(env: Env): Promise<void> {
   }
 }
 
+/** Staged upload bytes whose upload never finished (the request failed after the COPY committed). */
+export async function dropStaleUploads(db: Db): Promise<number> {
+  const res = await db.execute(sql`delete from program_file_uploads where created_at < now() - interval '1 hour'`);
+  return res.rowCount ?? 0;
+}
+
 /**
  * Revisions to (re-)analyse after a start: analyses waiting or running with no job left in the queue (the job was
  * lost with a dead process or never written), and analyses made by an older engine.
@@ -164,6 +170,8 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
     });
   };
   const mailTimer = setInterval(deliverMail, MAIL_POLL_MS);
+  const stagedTimer = setInterval(() => void dropStaleUploads(db).catch(() => undefined), 10 * 60_000);
+  stagedTimer.unref();
 
   // LISTEN for wake-ups (sent on commit by uploads, re-analysis requests and queued mail).
   let stopping = false;
@@ -186,6 +194,7 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
   };
   await listen();
 
+  await dropStaleUploads(db);
   const requeued = await requeueOnStart(db);
   if (requeued > 0) log(`queued ${requeued} revision(s) for analysis (lost jobs or an older engine than v${ENGINE_VERSION})`);
   deliverMail();
@@ -197,6 +206,7 @@ export async function startWorker(opts: WorkerOptions): Promise<RunningWorker> {
     async stop() {
       stopping = true;
       clearInterval(mailTimer);
+      clearInterval(stagedTimer);
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
       await mailRunning;
       await (listener as Client | null)?.end().catch(() => undefined);

@@ -8,6 +8,7 @@ import * as uploadRoute from "@/app/api/programs/[id]/revisions/route";
 import { createPart } from "@/lib/dal/parts";
 import { createProgram } from "@/lib/dal/programs";
 import { env, loadEnv, type Env } from "@/lib/env";
+import { ENGINE_VERSION } from "@/lib/gcode";
 import { startWorker, type RunningWorker } from "@/lib/jobs/worker";
 import { machineFields, params } from "./helpers";
 
@@ -149,7 +150,7 @@ export async function insertRevision(opts: { programId: number; uploadedBy: numb
     await tx.insert(revisionAnalyses).values({
       revisionId: rev!.id,
       state: "done",
-      engineVersion: 1,
+      engineVersion: ENGINE_VERSION,
       errorCount: 0,
       warningCount: 0,
       infoCount: 0,

@@ -5,6 +5,7 @@ import { auditEvents, programFiles, programs, revisions } from "@/db/schema";
 import * as revisionRoute from "@/app/api/revisions/[id]/route";
 import * as pushRoute from "@/app/api/revisions/route";
 import { env } from "@/lib/env";
+import { benchProgram } from "@/scripts/bench-program";
 import { readFileBytes } from "@/lib/jobs/analysis";
 import { actAs, jsonRequest, params } from "./helpers";
 import { makeMachine, makeProgram, ncProgram, sha256, upload, uploadRequest } from "./vault-helpers";
@@ -91,6 +92,30 @@ describe("uploads", () => {
     expect(await stored(programId)).toEqual(before);
   });
 
+  it("streams a large upload of known length into PostgreSQL as it arrives, and leaves no staged bytes", async () => {
+    await actAs("programmer");
+    const { programFileUploads } = await import("@/db/schema");
+    const staged = async () => (await db().select({ n: count() }).from(programFileUploads))[0]!.n;
+    const big = Buffer.from(benchProgram(250_000));
+    expect(big.length).toBeGreaterThan(4 * 1024 * 1024);
+    const res0 = await uploadRequest(programId, big, { "content-length": String(big.length), "x-content-sha256": sha256(big) });
+    expect(res0.status).toBe(201);
+    expect(res0.headers.get("server-timing")).toContain("staged");
+    const rev = ((await res0.json()) as { revision: { sha256: string } }).revision;
+    expect(rev.sha256).toBe(sha256(big));
+    // Read from the table, not the in-memory cache.
+    const [row] = await db().execute<{ same: boolean }>(sql`select bytes = ${big} as same from program_files where sha256 = ${rev.sha256}`).then((r) => r.rows);
+    expect(row!.same).toBe(true);
+    expect(await staged()).toBe(0);
+    // Refused after the bytes were streamed (a NUL in the last line): nothing stored, nothing staged.
+    const before = await stored(programId);
+    const bad = Buffer.concat([Buffer.from(benchProgram(250_000)), Buffer.from("G0 X1\u0000\n")]);
+    const res = await uploadRequest(programId, bad, { "content-length": String(bad.length) });
+    expect(res.status).toBe(415);
+    expect(await stored(programId)).toEqual(before);
+    expect(await staged()).toBe(0);
+  });
+
   it("stores a 10,000-character line safely", async () => {
     await actAs("programmer");
     const text = ncProgram("long line", `(${"X".repeat(10_000)})`);
@@ -152,7 +177,7 @@ describe("uploads", () => {
 
   it("keeps identical uploads in one file row, and removes the bytes with the last draft that used them", async () => {
     await actAs("programmer");
-    const text = ncProgram("shared bytes");
+    const text = ncProgram(`shared bytes ${Date.now()} ${Math.random()}`);
     const a = await upload(programId, text);
     const b = await upload(programId, text);
     const files = () => db().select({ n: count() }).from(programFiles).where(eq(programFiles.sha256, sha256(text)));

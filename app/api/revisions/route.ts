@@ -5,7 +5,7 @@ import { uploadRevision } from "@/lib/dal/revisions";
 import { env } from "@/lib/env";
 import { route } from "@/lib/http";
 import { readQuery } from "@/lib/http-query";
-import { receiveProgram } from "@/lib/upload";
+import { receiveProgram, uploadTiming } from "@/lib/upload";
 import { pushQuerySchema } from "@/lib/vault-validation";
 
 // Outside proxy.ts's matcher like every upload route (see app/api/programs/[id]/revisions/route.ts).
@@ -24,6 +24,6 @@ export const POST = route(async (req) => {
   const file = await receiveProgram(req, env().uploadMaxBytes);
   const t1 = performance.now();
   const revision = await uploadRevision(program.id, file, { note: query.note ?? "" });
-  const timing = `receive;dur=${(t1 - t0).toFixed(1)}, store;dur=${(performance.now() - t1).toFixed(1)}`;
+  const timing = uploadTiming(t0, t1, file);
   return NextResponse.json({ revision, programCreated: program.created }, { status: 201, headers: { "Server-Timing": timing } });
 });

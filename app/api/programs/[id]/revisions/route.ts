@@ -7,7 +7,7 @@ import { authorize } from "@/lib/auth/session";
 import { uploadRevision } from "@/lib/dal/revisions";
 import { env } from "@/lib/env";
 import { parseId, route } from "@/lib/http";
-import { receiveProgram } from "@/lib/upload";
+import { receiveProgram, uploadTiming } from "@/lib/upload";
 import { multiLine } from "@/lib/vault-validation";
 
 // Uploads stay outside proxy.ts's matcher (it skips every `api/` path): Next buffers the body of a request the
@@ -34,7 +34,7 @@ export const POST = route<Ctx>(async (req, { params }) => {
   const file = await receiveProgram(req, env().uploadMaxBytes);
   const t1 = performance.now();
   const revision = await uploadRevision(programId, file, { note: note.data });
-  const timing = `receive;dur=${(t1 - t0).toFixed(1)}, store;dur=${(performance.now() - t1).toFixed(1)}`;
+  const timing = uploadTiming(t0, t1, file);
   return NextResponse.json({ revision }, { status: 201, headers: { "Server-Timing": timing } });
 });
 
