@@ -115,6 +115,13 @@ const STATUS_TEXT: Record<RevisionStatus, string> = {
 export function WorkflowPanel(p: WorkflowProps) {
   const { can } = p;
   const any = can.submit || can.release || can.reject || can.delete;
+  if (!any && !p.releaseBlocked) {
+    return (
+      <p className="rounded-lg border border-rule bg-panel px-5 py-3 text-sm" data-testid="workflow">
+        <strong className="font-semibold">Review:</strong> {STATUS_TEXT[p.status]}
+      </p>
+    );
+  }
   return (
     <section aria-labelledby="workflow" className="space-y-4 rounded-lg border border-rule bg-panel p-5" data-testid="workflow">
       <div>
@@ -149,7 +156,6 @@ export function WorkflowPanel(p: WorkflowProps) {
           </div>
         </details>
       )}
-      {!any && !p.releaseBlocked && <p className="text-sm text-ink-soft">Nothing for your role to do here.</p>}
     </section>
   );
 }
