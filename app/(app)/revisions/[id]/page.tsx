@@ -25,6 +25,14 @@ import { deleteDraftAction, rejectRevisionAction, releaseRevisionAction, submitR
 
 type Props = { params: Promise<{ id: string }>; searchParams: Promise<SearchParams> };
 
+/** The engine's tool order of a multi-part program, in words. */
+const TOOL_ORDER: Record<string, string> = {
+  "by-tool": "by tool, all parts",
+  "by-part": "part after part",
+  single: "one part",
+  mixed: "mixed",
+};
+
 const DONE: Record<string, string> = {
   submitted: "Submitted for review: the leads got a mail.",
   released: "Released: your signature is bound to this revision's SHA-256, and the programmer got a mail.",
@@ -137,17 +145,19 @@ export default async function RevisionPage({ params, searchParams }: Props) {
           <h2 id="summary" className="text-lg font-semibold">Summary</h2>
           {a?.state === "done" ? (
             <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6" data-testid="revision-summary">
-              {[
-                ["Units", a.units ?? "—"],
-                ["Work offsets", a.workOffsets.join(", ") || "none"],
-                ["Tools", `${a.toolCount ?? 0} (${plural(a.toolChangeCount ?? 0, "change")})`],
-                ["Order", a.toolOrder ?? "—"],
-                ["Run time (estimate)", formatDuration(a.totalSeconds)],
-                ["Cutting · rapid", `${formatDuration(a.feedSeconds)} · ${formatDuration(a.rapidSeconds)}`],
-              ].map(([k, v]) => (
+              {(
+                [
+                  ["Units", a.units ?? "—", false],
+                  ["Work offsets", a.workOffsets.join(", ") || "none", false],
+                  ["Tools", `${a.toolCount ?? 0} (${plural(a.toolChangeCount ?? 0, "change")})`, true],
+                  ["Order", a.toolOrder ? TOOL_ORDER[a.toolOrder] ?? a.toolOrder : "—", false],
+                  ["Run time (estimate)", formatDuration(a.totalSeconds), true],
+                  ["Cutting · rapid", `${formatDuration(a.feedSeconds)} · ${formatDuration(a.rapidSeconds)}`, true],
+                ] as const
+              ).map(([k, v, numeric]) => (
                 <div key={k} className="rounded-lg border border-rule bg-panel p-3">
                   <dt className="text-xs uppercase tracking-wide text-ink-soft">{k}</dt>
-                  <dd className="mt-1 font-semibold tabular-nums">{v}</dd>
+                  <dd className={`mt-1 font-semibold ${numeric ? "tabular-nums" : ""}`}>{v}</dd>
                 </div>
               ))}
             </dl>
