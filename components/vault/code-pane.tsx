@@ -19,7 +19,7 @@ function useRevisionLines(revisionId: number, lineCount: number) {
   return useQuery({
     queryKey: ["revision-bytes", revisionId],
     queryFn: async ({ signal }) => {
-      const res = await fetch(`/api/revisions/${revisionId}/file`, { signal });
+      const res = await fetch(`/api/revisions/${revisionId}/file?purpose=view`, { signal });
       if (!res.ok) throw new Error(`the server answered ${res.status}`);
       return new LineIndex(new Uint8Array(await res.arrayBuffer()), lineCount);
     },

@@ -77,6 +77,8 @@ export function describeEvent(e: AuditRow): string {
     }
     case "revision.download":
       return `downloaded revision${num(d)}`;
+    case "revision.view":
+      return `looked at the code of revision${num(d)}${typeof d.repeated === "number" ? ` (and ${d.repeated} more times)` : ""}`;
     case "revision.delete-draft":
       return `deleted draft revision${num(d)}`;
     default:

@@ -15,7 +15,7 @@ import {
   signatures,
   type SignatureMeaning,
 } from "@/db/schema";
-import { recordEvent } from "@/lib/audit";
+import { recordEvent, recordRepeatedEvent } from "@/lib/audit";
 import { RequestError } from "@/lib/auth/errors";
 import { can } from "@/lib/auth/roles";
 import { authorize, requestIp, type CurrentUser } from "@/lib/auth/session";
@@ -302,7 +302,15 @@ export async function signaturesOf(revisionId: number): Promise<SignatureView[]>
 }
 
 /** The exact bytes of a revision with its display name, for a download; audited. */
-export async function readRevisionFile(id: number): Promise<{ bytes: Buffer; fileName: string; sha256: string } | null> {
+/**
+ * A revision's exact bytes. A download (the file taken away, e.g. to the machine) is one audit event each time; a
+ * view (the app's own code pane and 3D view reading the text) is rolled up to one event per person, revision and
+ * window, so looking at a page does not flood the record.
+ */
+export async function readRevisionFile(
+  id: number,
+  purpose: "download" | "view" = "download",
+): Promise<{ bytes: Buffer; fileName: string; sha256: string } | null> {
   const actor = await authorize("readPrograms");
   const [row] = await db()
     .select({ sha256: revisions.sha256, fileName: revisions.fileName, programId: revisions.programId, number: revisions.number })
@@ -311,14 +319,18 @@ export async function readRevisionFile(id: number): Promise<{ bytes: Buffer; fil
   if (!row) return null;
   const bytes = await readFileBytes(db(), row.sha256);
   if (!bytes) return null;
-  await recordEvent({
+  const event = {
     actor,
-    action: "revision.download",
     objectType: "revision",
     objectId: id,
     details: { programId: row.programId, number: row.number, sha256: row.sha256 },
     ip: await requestIp(),
-  });
+  };
+  if (purpose === "view") {
+    await recordRepeatedEvent({ ...event, action: "revision.view", key: `revision.view:${actor.id}:${id}`, summary: event.details });
+  } else {
+    await recordEvent({ ...event, action: "revision.download" });
+  }
   return { bytes, fileName: row.fileName, sha256: row.sha256 };
 }
 

@@ -207,11 +207,22 @@ describe("vault pages refuse and miss with the right status", () => {
       expect(res.status(), path).toBe(403);
       expect(await res.text()).toContain("Not for your role");
     }
-    await page.goto(appUrl("/programs/2147483647"));
-    await page.getByText("Program not found").waitFor();
-    await page.goto(appUrl("/revisions/2147483647"));
-    await page.getByText("Revision not found").waitFor();
-    await page.goto(appUrl("/revisions/abc/compare/1"));
-    await page.getByText("Revision to compare not found").waitFor();
+    // The record's existence is decided in its layout, before a loading skeleton streams: a real 404, not a
+    // 200 that happens to show the missing panel.
+    const missing: [string, string][] = [
+      ["/programs/2147483647", "Program not found"],
+      ["/machines/2147483647", "Machine not found"],
+      ["/revisions/2147483647", "Revision not found"],
+      ["/revisions/abc/compare/1", "Revision not found"],
+      ["/revisions/1/compare/2147483647", "Revision to compare not found"],
+    ];
+    for (const [path, text] of missing) {
+      const res = await page.goto(appUrl(path));
+      expect(res?.status(), path).toBe(404);
+      await page.getByText(text).waitFor();
+    }
+    for (const path of ["/programs/1", "/machines/1", "/revisions/1"]) {
+      expect((await page.goto(appUrl(path)))?.status(), path).toBe(200);
+    }
   });
 });

@@ -110,6 +110,17 @@ describe("reading programs and revisions", () => {
     const downloads = await db().select().from(auditEvents).where(and(eq(auditEvents.action, "revision.download"), eq(auditEvents.objectId, String(rev.id))));
     expect(downloads).toHaveLength(1);
 
+    // The code pane reads the same bytes three times: one view event (the rest are counted for the window's summary
+    // row), and no download.
+    for (let i = 0; i < 3; i++) {
+      const viewed = await fileRoute.GET(get(`/api/revisions/${rev.id}/file?purpose=view`), params({ id: String(rev.id) }));
+      expect(Buffer.from(await viewed.arrayBuffer()).equals(Buffer.from(text))).toBe(true);
+    }
+    const byAction = async (action: string) =>
+      db().select().from(auditEvents).where(and(eq(auditEvents.action, action), eq(auditEvents.objectId, String(rev.id))));
+    expect(await byAction("revision.view")).toHaveLength(1);
+    expect(await byAction("revision.download")).toHaveLength(1);
+
     const events = (await (await programEventsRoute.GET(get(`/api/programs/${programId}/events`), params({ id: String(programId) }))).json()) as { events: { action: string }[] };
     expect(events.events.map((e) => e.action)).toEqual(expect.arrayContaining(["revision.upload", "revision.download", "program.create"]));
   });

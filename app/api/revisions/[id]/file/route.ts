@@ -8,10 +8,14 @@ export const dynamic = "force-dynamic";
 
 type Ctx = { params: Promise<{ id: string }> };
 
-/** The exact bytes as uploaded, as an attachment; every download is in the audit record. */
-export const GET = route<Ctx>(async (_req, { params }) => {
+/**
+ * The exact bytes as uploaded, as an attachment; every download is in the audit record. `?purpose=view` is the
+ * app's own code pane and 3D view reading the text: audited too, rolled up per person and revision.
+ */
+export const GET = route<Ctx>(async (req, { params }) => {
   await authorize("readPrograms");
-  const file = await readRevisionFile(parseId((await params).id));
+  const purpose = new URL(req.url).searchParams.get("purpose") === "view" ? "view" : "download";
+  const file = await readRevisionFile(parseId((await params).id), purpose);
   if (!file) throw new RequestError(404, "No such revision.");
   return new Response(new Uint8Array(file.bytes.buffer as ArrayBuffer, file.bytes.byteOffset, file.bytes.byteLength), {
     headers: {

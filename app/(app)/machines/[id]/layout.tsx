@@ -1,0 +1,7 @@
+import { requireRecordPage } from "@/lib/auth/record-guard";
+
+/** Decides 403/404 before the loading skeleton streams (see requireRecordPage). */
+export default async function MachineLayout({ children, params }: { children: React.ReactNode; params: Promise<{ id: string }> }) {
+  await requireRecordPage("machine", (await params).id);
+  return children;
+}
