@@ -24,13 +24,40 @@ export function errorResponse(e: unknown): NextResponse {
 
 type Handler<C> = (req: Request, ctx: C) => Promise<Response>;
 
+const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
+
+/**
+ * Whether a request that changes something came from a page of another origin. The session cookie is SameSite=Lax,
+ * which keeps other sites out but not another port or app on this same host (same site, other origin): a plain
+ * form or a simple fetch from there could upload a program or sign someone in with the cookie riding along. So a
+ * write must come from the app's own pages (Sec-Fetch-Site same-origin, or an Origin whose host is the one asked)
+ * or carry no browser marks at all (curl, a CAM post), or authenticate with an API token, which no page can attach
+ * without the app's consent.
+ */
+export function crossOriginWrite(req: Request): boolean {
+  if (SAFE_METHODS.has(req.method.toUpperCase())) return false;
+  if (/^Bearer\s/i.test(req.headers.get("authorization") ?? "")) return false;
+  const site = req.headers.get("sec-fetch-site");
+  if (site !== null && site !== "same-origin" && site !== "none") return true;
+  const origin = req.headers.get("origin");
+  if (origin === null) return false;
+  const host = req.headers.get("x-forwarded-host") ?? req.headers.get("host");
+  try {
+    return origin === "null" || new URL(origin).host !== host;
+  } catch {
+    return true;
+  }
+}
+
 /**
  * Wraps a route handler so every failure becomes a JSON error, never a stack trace. Inside it the session lookup
- * also accepts an API token (`Authorization: Bearer ...`); pages and server actions do not.
+ * also accepts an API token (`Authorization: Bearer ...`); pages and server actions do not. A write from a page of
+ * another origin is refused first (see crossOriginWrite).
  */
 export function route<C>(handler: Handler<C>): Handler<C> {
   return (req, ctx) =>
     runAsApiRequest(req, async () => {
+      if (crossOriginWrite(req)) return jsonError(403, "Requests that change data must come from Cyclegate's own pages.");
       try {
         return await handler(req, ctx);
       } catch (e) {

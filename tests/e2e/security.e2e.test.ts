@@ -180,6 +180,43 @@ describe("in the browser (items 1 and 4)", () => {
     expect(seen.filter((s) => !/unsafe-eval|script-src.*eval|'eval'/i.test(s) && !/\beval\b/i.test(s))).toEqual([]);
   });
 
+  it("a page served on another port of this host cannot write through the JSON API with the user's cookie", async () => {
+    await signIn(b.page, "programmer@cyclegate.test");
+    const revisionCount = async () => {
+      const res = await b.page.request.get(appUrl("/api/programs/1"));
+      expect(res.status()).toBe(200);
+      return ((await res.json()) as { program: { revisions: unknown[] } }).program.revisions.length;
+    };
+    const before = await revisionCount();
+    const target = appUrl("/api/programs/1/revisions");
+    // SameSite=Lax lets the cookie ride along: another port of this host is the same site. A simple fetch (no
+    // preflight) and a plain multipart form, the two writes a page can make without the app's consent.
+    const attacker = await sideServer(
+      () => `<!doctype html><title>attacker</title>
+<form id="f" method="post" enctype="multipart/form-data" action="${target}" target="sink"><input type="hidden" name="x" value="1"></form>
+<iframe name="sink"></iframe>
+<script>
+fetch(${JSON.stringify(target)}, { method: "POST", mode: "no-cors", credentials: "include", headers: { "content-type": "text/plain" }, body: "G0 X0 Y0\\nM30\\n" })
+  .finally(() => { document.getElementById("f").submit(); setTimeout(() => { document.title = "sent"; }, 1500); });
+</script>`,
+    );
+    try {
+      await b.page.goto(`http://localhost:${attacker.port}/`);
+      await b.page.waitForFunction(() => document.title === "sent", undefined, { timeout: 15_000 });
+    } finally {
+      attacker.server.close();
+    }
+    expect(await revisionCount()).toBe(before);
+    // The same upload from the app's own page goes through, so the refusal above is the origin check at work.
+    await b.page.goto(appUrl("/programs/1"));
+    const status = await b.page.evaluate(
+      (url) => fetch(url, { method: "POST", headers: { "content-type": "text/plain", "x-file-name": "origin-check.nc" }, body: "G0 X0 Y0\nM30\n" }).then((r) => r.status),
+      target,
+    );
+    expect(status).toBe(201);
+    expect(await revisionCount()).toBe(before + 1);
+  });
+
   it("a page served on another port of this host cannot frame a signed-in page", async () => {
     await signIn(b.page, "admin@cyclegate.test");
     const framer = await sideServer(
@@ -276,6 +313,10 @@ describe("in the browser (items 1 and 4)", () => {
         b.page.getByRole("button", { name: "Change password" }).click(),
       ]);
       await expect.poll(() => formAlert(b.page).innerText()).toMatch(expected);
+      // The alert reads the same after each wrong try, so also wait for this try's answer to be rendered: React
+      // resets the form once the action has finished; filling before that would lose the next try's fields.
+      await expect.poll(() => b.page.getByLabel("Current password").inputValue()).toBe("");
+      await expect.poll(() => b.page.getByRole("button", { name: "Change password" }).isEnabled()).toBe(true);
     };
     for (let i = 0; i < 5; i++) await attempt(`not-mine-${i}`, /^The password is wrong\.$/);
     await attempt(u.password, /^Too many failed tries\. Try again in \d+ s\.$/);
