@@ -8,7 +8,7 @@ export default async function SignedInLayout({ children }: { children: React.Rea
   return (
     <>
       <AppHeader user={user} />
-      <main className="mx-auto max-w-6xl px-4 py-6">{children}</main>
+      <main className="mx-auto max-w-7xl px-4 py-6">{children}</main>
     </>
   );
 }

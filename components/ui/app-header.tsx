@@ -3,29 +3,24 @@ import type { Role } from "@/db/schema";
 import { can } from "@/lib/auth/roles";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { signOutAction } from "@/app/(app)/actions";
+import { NavLinks } from "./nav-links";
 
 export function AppHeader({ user }: { user: { name: string; role: Role } }) {
   const links = [
     { href: "/", label: "Overview", show: true },
+    { href: "/programs", label: "Programs", show: can(user.role, "readPrograms") },
     { href: "/machines", label: "Machines", show: can(user.role, "readMachines") },
     { href: "/admin/users", label: "Users", show: can(user.role, "manageUsers") },
     { href: "/audit", label: "Audit record", show: can(user.role, "readAudit") },
+    { href: "/admin/outbox", label: "Mail outbox", show: can(user.role, "readOutbox") },
   ];
   return (
     <header className="border-b border-rule bg-ink text-white">
-      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
+      <div className="mx-auto flex max-w-7xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
         <Link href="/" className="text-lg font-bold tracking-tight">
           Cycle<span className="text-sky-300">gate</span>
         </Link>
-        <nav aria-label="Main" className="flex flex-1 flex-wrap gap-1">
-          {links
-            .filter((l) => l.show)
-            .map((l) => (
-              <Link key={l.href} href={l.href} className="rounded px-3 py-2 text-sm font-medium text-white/85 hover:bg-white/10 hover:text-white">
-                {l.label}
-              </Link>
-            ))}
-        </nav>
+        <NavLinks links={links.filter((l) => l.show).map(({ href, label }) => ({ href, label }))} />
         <div className="flex items-center gap-3 text-sm">
           <Link href="/account" className="hover:underline" data-testid="current-user">
             {user.name}

@@ -14,6 +14,9 @@ import * as shellActions from "@/app/(app)/actions";
 import * as machineActions from "@/app/(app)/admin/machines/actions";
 import * as userActions from "@/app/(app)/admin/users/actions";
 import * as accountActions from "@/app/(app)/account/actions";
+import * as programActions from "@/app/(app)/programs/actions";
+import * as revisionActions from "@/app/(app)/revisions/actions";
+import * as machinePageActions from "@/app/(app)/machines/actions";
 import * as partsRoute from "@/app/api/parts/route";
 import * as programsRoute from "@/app/api/programs/route";
 import * as programRoute from "@/app/api/programs/[id]/route";
@@ -262,7 +265,92 @@ const CASES: Case[] = [
         ),
       ),
   },
+
+  // The vault pages' server actions.
+  {
+    name: "action programs#createPartAction",
+    expect: PROGRAMMER_ONLY,
+    run: () => actionStatus(() => programActions.createPartAction(initialFormState, formData({ number: `PG-${Math.random().toString(36).slice(2, 10)}`, name: "Page part" }))),
+  },
+  {
+    name: "action programs#createProgramAction",
+    expect: PROGRAMMER_ONLY,
+    run: async (c) => {
+      const partId = await insertPartRow();
+      return actionStatus(() =>
+        programActions.createProgramAction(
+          initialFormState,
+          formData({ programNumber: `O${Math.floor(Math.random() * 1e6)}`, title: "Page program", partId, machineId: c.machineId, partsPerCycle: 1 }),
+        ),
+      );
+    },
+  },
+  {
+    name: "action programs#updateProgramAction",
+    expect: PROGRAMMER_ONLY,
+    run: (c) =>
+      actionStatus(() => programActions.updateProgramAction(c.programId, initialFormState, formData({ title: "Renamed on the page", operation: "", machineId: c.machineId, partsPerCycle: 1, safeZ: "" }))),
+  },
+  {
+    name: "action revisions#submitRevisionAction",
+    expect: PROGRAMMER_ONLY,
+    run: async (c) => actionStatus(async () => revisionActions.submitRevisionAction(await freshRevision(c, "draft"), initialFormState, formData({ comment: "ready" }))),
+  },
+  {
+    name: "action revisions#releaseRevisionAction",
+    expect: LEAD_ONLY,
+    run: async (c) =>
+      actionStatus(async () =>
+        revisionActions.releaseRevisionAction(await freshRevision(c, "submitted", false), initialFormState, formData({ password: c.me?.password ?? TEST_PASSWORD, comment: "matrix" })),
+      ),
+  },
+  {
+    name: "action revisions#rejectRevisionAction",
+    expect: LEAD_ONLY,
+    run: async (c) => actionStatus(async () => revisionActions.rejectRevisionAction(await freshRevision(c, "submitted", false), initialFormState, formData({ rejectComment: "matrix" }))),
+  },
+  {
+    name: "action revisions#deleteDraftAction",
+    expect: UPLOADER_OR_ADMIN,
+    run: async (c) => actionStatus(async () => revisionActions.deleteDraftAction(await freshRevision(c, "draft"), initialFormState, formData({ confirm: true }))),
+  },
+  {
+    name: "action machines#setWorkOffsetAction",
+    expect: AT_THE_MACHINE,
+    run: (c) => actionStatus(() => machinePageActions.setWorkOffsetAction(c.machineId, initialFormState, formData({ code: "G56", x: "-120.5", y: "-60", z: "-210" }))),
+  },
+  {
+    name: "action machines#clearWorkOffsetAction",
+    expect: AT_THE_MACHINE,
+    run: async (c) => {
+      const { setFixtureOffset } = await import("./vault-helpers");
+      await setFixtureOffset(c.machineId, "G58");
+      return actionStatus(() => machinePageActions.clearWorkOffsetAction(c.machineId, initialFormState, formData({ code: "G58" })));
+    },
+  },
+  {
+    name: "action account#createTokenAction",
+    expect: PROGRAMMER_ONLY,
+    run: () => actionStatus(() => accountActions.createTokenAction(initialFormState, formData({ name: "matrix page token" }))),
+  },
+  {
+    name: "action account#revokeTokenAction",
+    expect: PROGRAMMER_ONLY,
+    run: async () => {
+      const created = await tokensRoute.POST(jsonRequest("POST", { name: "page revoke" }), undefined);
+      const id = created.status === 201 ? ((await created.json()) as { token: { id: number } }).token.id : 1;
+      return actionStatus(() => accountActions.revokeTokenAction(id, initialFormState, formData({})));
+    },
+  },
 ];
+
+/** A part row straight into the database (the create-program form needs one to pick). */
+async function insertPartRow(): Promise<number> {
+  const { parts } = await import("@/db/schema");
+  const { db } = await import("@/db");
+  const [row] = await db().insert(parts).values({ number: `PP-${Math.random().toString(36).slice(2, 10)}`, name: "Picked part" }).returning({ id: parts.id });
+  return row!.id;
+}
 
 let machineId = 0;
 let targetUserId = 0;

@@ -34,6 +34,7 @@ export default async function MachinesPage() {
               <th className="px-3 py-2">Spindle max</th>
               <th className="px-3 py-2">Tool change</th>
               <th className="px-3 py-2">Safe Z</th>
+              <th className="px-3 py-2">Work offsets</th>
               {editable && <th className="px-3 py-2"><span className="sr-only">Edit</span></th>}
             </tr>
           </thead>
@@ -41,18 +42,21 @@ export default async function MachinesPage() {
             {machines.map((m) => (
               <tr key={m.id} className="border-b border-rule last:border-0">
                 <td className="px-3 py-2 font-medium">
-                  {m.name}
+                  <Link href={`/machines/${m.id}`} className="text-brand hover:underline">{m.name}</Link>
                   {m.notes && <p className="font-normal text-ink-soft">{m.notes}</p>}
                 </td>
                 <td className="px-3 py-2">{m.units}</td>
-                <td className="px-3 py-2 whitespace-nowrap">
+                <td className="px-3 py-2 whitespace-nowrap tabular-nums">
                   {fmt(m.travelXMin)}…{fmt(m.travelXMax)} / {fmt(m.travelYMin)}…{fmt(m.travelYMax)} / {fmt(m.travelZMin)}…{fmt(m.travelZMax)}
                 </td>
                 <td className="px-3 py-2">{fmt(m.rapidRate)}/min</td>
                 <td className="px-3 py-2">{fmt(m.maxFeed)}/min</td>
                 <td className="px-3 py-2">{fmt(m.maxSpindle)} rpm{m.spindleProgramControlled ? "" : " (manual)"}</td>
                 <td className="px-3 py-2">{m.manualToolChange ? "manual" : "changer"}, {fmt(m.toolChangeSeconds)} s</td>
-                <td className="px-3 py-2">{fmt(m.safeZ)}</td>
+                <td className="px-3 py-2 tabular-nums">{fmt(m.safeZ)}</td>
+                <td className="px-3 py-2">
+                  <Link href={`/machines/${m.id}`} className="text-brand hover:underline">Values set</Link>
+                </td>
                 {editable && (
                   <td className="px-3 py-2">
                     <Link href={`/admin/machines/${m.id}`} className="text-brand hover:underline">Edit</Link>
