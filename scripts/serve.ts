@@ -17,9 +17,11 @@ import { createServer } from "node:http";
 import path from "node:path";
 import next from "next";
 import { loadEnv } from "../lib/env";
+import { ThreadAnalyser } from "../lib/jobs/analyser";
 import { startWorker, type RunningWorker } from "../lib/jobs/worker";
 import { gateRequest } from "../lib/request-gate";
 import { contentSecurityPolicy, securityHeaders } from "../lib/security-headers";
+import { offerToolpathBuilder } from "../lib/viewer/toolpath-service";
 
 const FORWARDING_HEADERS = ["x-forwarded-for", "x-forwarded-host", "x-forwarded-port", "x-forwarded-proto", "x-real-ip", "forwarded"];
 /** A refused body is read and thrown away up to this much, so the client sees the answer; past it the connection is cut. */
@@ -33,6 +35,8 @@ const app = next({ dev, dir: path.resolve(import.meta.dirname, ".."), hostname, 
 const handle = app.getRequestHandler();
 
 await app.prepare();
+// The backplot's toolpath answers are built on a thread of their own (GET /api/revisions/{id}/toolpath).
+offerToolpathBuilder(new ThreadAnalyser());
 let worker: RunningWorker | null = null;
 if (env.inProcessWorker) {
   worker = await startWorker({ env, inAppProcess: true });

@@ -1,4 +1,4 @@
-import { MotionKind } from "@/lib/gcode/types";
+import { MotionKind } from "../gcode/types";
 
 /**
  * Where each of `lines` sits on the path, for markers: the end of the first drawn segment of that line (where a move

@@ -1,4 +1,4 @@
-import type { Analysis } from "@/lib/gcode/types";
+import type { Analysis } from "../gcode/types";
 import { anchorLines } from "./anchors";
 import type { ViewerMeta, ViewerPath } from "./types";
 

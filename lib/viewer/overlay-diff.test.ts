@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { analyzeProgram } from "@/lib/gcode";
+import { analyzeProgram } from "../gcode/index";
 import { viewerDataFromAnalysis } from "./from-analysis";
 import { diffPaths } from "./overlay-diff";
 

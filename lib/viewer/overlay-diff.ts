@@ -9,7 +9,7 @@
  *
  * One pass over each path with an open-addressing hash table of typed arrays: no object per segment.
  */
-import { MotionKind, NO_TOOL } from "@/lib/gcode/types";
+import { MotionKind, NO_TOOL } from "../gcode/types";
 import type { ViewerMeta, ViewerPath } from "./types";
 
 export interface PathDiff {

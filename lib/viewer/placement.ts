@@ -4,7 +4,7 @@
  * from the value entered at the machine (machine_work_offsets, the machine's units), else it is not known and that
  * part is not placed.
  */
-import type { Units } from "@/lib/gcode/types";
+import type { Units } from "../gcode/types";
 
 export interface Xyz {
   x: number;

@@ -2,7 +2,7 @@
  * Playback on the time estimate: which segment runs at time t, where the tool is, and what a pause before a
  * segment is. Binary searches over the time columns; nothing proportional to the path's length per call.
  */
-import { MotionKind, NO_TOOL } from "@/lib/gcode/types";
+import { MotionKind, NO_TOOL } from "../gcode/types";
 import type { ViewerPath } from "./types";
 
 export type PlayPhase = "start" | "moving" | "pause" | "end";
@@ -19,6 +19,85 @@ export interface PlayState {
   pause: "tool-change" | "dwell-or-other" | null;
 }
 
+/** What playback reads of a path: the end times, and per segment its start, kind and tool. */
+export interface Timeline {
+  segmentCount: number;
+  positions: Float32Array;
+  /** End of each segment's motion, seconds. */
+  time: Float32Array;
+  start(i: number): number;
+  kind(i: number): number;
+  /** Tool index, NO_TOOL for none. */
+  tool(i: number): number;
+}
+
+/** A Timeline over the full columns. */
+export function timelineOf(path: ViewerPath): Timeline {
+  return {
+    segmentCount: path.segmentCount,
+    positions: path.positions,
+    time: path.time,
+    start: (i) => path.startTime[i]!,
+    kind: (i) => path.kind[i]!,
+    tool: (i) => path.tool[i]!,
+  };
+}
+
+/**
+ * The starts that differ from the previous segment's end (pauses: tool changes, dwells, moves not drawn) as a
+ * sparse list, so the page need not keep a start time per segment.
+ */
+export function pausesOf(path: Pick<ViewerPath, "segmentCount" | "time" | "startTime">): { at: Uint32Array; start: Float32Array } {
+  const at: number[] = [];
+  const start: number[] = [];
+  for (let i = 0; i < path.segmentCount; i++) {
+    const prev = i > 0 ? path.time[i - 1]! : 0;
+    if (path.startTime[i] !== prev) {
+      at.push(i);
+      start.push(path.startTime[i]!);
+    }
+  }
+  return { at: Uint32Array.from(at), start: Float32Array.from(start) };
+}
+
+/**
+ * A Timeline from the page's compact columns: end times, the sparse pauses and the per-vertex bytes of
+ * render-buffers.ts (kind, tool byte) of the vertex each segment ends at.
+ */
+export function compactTimeline(
+  positions: Float32Array,
+  time: Float32Array,
+  pauses: { at: Uint32Array; start: Float32Array },
+  vattr: Uint8Array,
+): Timeline {
+  const n = time.length;
+  return {
+    segmentCount: n,
+    positions,
+    time,
+    start(i) {
+      const k = lowerBound(pauses.at, i);
+      if (k < pauses.at.length && pauses.at[k] === i) return pauses.start[k]!;
+      return i > 0 ? time[i - 1]! : 0;
+    },
+    kind: (i) => vattr[(i + 1) * 4]!,
+    tool: (i) => {
+      const b = vattr[(i + 1) * 4 + 1]!;
+      return b === 255 ? NO_TOOL : b;
+    },
+  };
+}
+
+function lowerBound(a: Uint32Array, v: number): number {
+  let lo = 0, hi = a.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (a[mid]! < v) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
 /** First segment whose motion ends at or after t (segmentCount when t is past the last end). */
 export function segmentEndingAfter(time: Float32Array, n: number, t: number): number {
   let lo = 0, hi = n;
@@ -31,24 +110,24 @@ export function segmentEndingAfter(time: Float32Array, n: number, t: number): nu
 }
 
 /** Where the tool is at time t (seconds from the program's start). */
-export function locate(path: ViewerPath, t: number): PlayState {
-  const n = path.segmentCount;
-  const p = path.positions;
+export function locate(tl: Timeline, t: number): PlayState {
+  const n = tl.segmentCount;
+  const p = tl.positions;
   if (n === 0) return { segment: 0, phase: "end", x: NaN, y: NaN, z: NaN, pause: null };
-  const i = segmentEndingAfter(path.time, n, t);
+  const i = segmentEndingAfter(tl.time, n, t);
   if (i >= n) {
     const v = n * 3;
     return { segment: n, phase: "end", x: p[v]!, y: p[v + 1]!, z: p[v + 2]!, pause: null };
   }
-  const s = path.startTime[i]!;
-  const e = path.time[i]!;
+  const s = tl.start(i);
+  const e = tl.time[i]!;
   const v = i * 3;
   if (t < s) {
     const phase: PlayPhase = i === 0 && t <= 0 ? "start" : "pause";
-    return { segment: i, phase, x: p[v]!, y: p[v + 1]!, z: p[v + 2]!, pause: phase === "pause" ? pauseKind(path, i) : null };
+    return { segment: i, phase, x: p[v]!, y: p[v + 1]!, z: p[v + 2]!, pause: phase === "pause" ? pauseKind(tl, i) : null };
   }
   // a Jump takes no time: the tool is already at its end
-  const f = path.kind[i] === MotionKind.Jump || e <= s ? 1 : Math.min(1, Math.max(0, (t - s) / (e - s)));
+  const f = tl.kind(i) === MotionKind.Jump || e <= s ? 1 : Math.min(1, Math.max(0, (t - s) / (e - s)));
   return {
     segment: i,
     phase: "moving",
@@ -63,14 +142,14 @@ export function locate(path: ViewerPath, t: number): PlayState {
  * A pause before segment i is a tool change when the tool differs from the segment before (or, for the first
  * segment, when a tool is loaded at all: the program changed to it first); otherwise a dwell or moves not drawn.
  */
-export function pauseKind(path: ViewerPath, i: number): "tool-change" | "dwell-or-other" {
-  const t = path.tool[i]!;
+export function pauseKind(tl: Timeline, i: number): "tool-change" | "dwell-or-other" {
+  const t = tl.tool(i);
   if (i === 0) return t !== NO_TOOL ? "tool-change" : "dwell-or-other";
-  return t !== path.tool[i - 1] && t !== NO_TOOL ? "tool-change" : "dwell-or-other";
+  return t !== tl.tool(i - 1) && t !== NO_TOOL ? "tool-change" : "dwell-or-other";
 }
 
-/** The time at which segment i starts (for stepping and for selecting a line). */
-export const segmentStart = (path: ViewerPath, i: number) => (i <= 0 ? 0 : i >= path.segmentCount ? path.time[path.segmentCount - 1] ?? 0 : path.startTime[i]!);
+/** The time at which segment i's motion starts (for stepping and for moving the tool to a line). */
+export const segmentStart = (tl: Timeline, i: number) => (i <= 0 ? tl.start(0) : i >= tl.segmentCount ? (tl.time[tl.segmentCount - 1] ?? 0) : tl.start(i));
 
 /**
  * How many pairs of an index (segment pairs `va, vb` of vertex numbers, sorted) have run completely before

@@ -9,7 +9,7 @@
  * - the same as a coarse index for moving the view: runs of segments alike in kind, tool and offset are drawn
  *   every k-th vertex, k chosen so at most `coarseTarget` pairs are drawn.
  */
-import { MotionKind, NO_TOOL } from "@/lib/gcode/types";
+import { MotionKind, NO_TOOL } from "../gcode/types";
 
 export type Style = "cut" | "rapid";
 

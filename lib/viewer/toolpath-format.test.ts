@@ -1,8 +1,8 @@
 import { readFileSync } from "node:fs";
 import { gzipSync } from "node:zlib";
 import { describe, expect, it } from "vitest";
-import { analyzeProgram } from "@/lib/gcode";
-import { MotionKind } from "@/lib/gcode/types";
+import { analyzeProgram } from "../gcode/index";
+import { MotionKind } from "../gcode/types";
 import { benchProgram } from "@/scripts/bench-program";
 import { decodeToolpath, encodeToolpath, positionStep, ToolpathFormatError } from "./toolpath-format";
 import { viewerDataFromAnalysis } from "./from-analysis";

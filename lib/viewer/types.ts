@@ -3,7 +3,7 @@
  * summary of the analysis. Built either from the toolpath route's binary answer (toolpath-format.ts) or from an
  * analysis run in the browser (from-analysis.ts); everything downstream is the same.
  */
-import type { Bounds, RuleId, Severity, Units } from "@/lib/gcode/types";
+import type { Bounds, RuleId, Severity, Units } from "../gcode/types";
 
 /** The toolpath columns, laid out as the engine's `Toolpath` (lib/gcode/README.md "Toolpath layout"). */
 export interface ViewerPath {

@@ -1,9 +1,9 @@
 import { describe, expect, it } from "vitest";
-import { analyzeProgram } from "@/lib/gcode";
-import { MotionKind } from "@/lib/gcode/types";
+import { analyzeProgram } from "../gcode/index";
+import { MotionKind } from "../gcode/types";
 import { anchorLines } from "./anchors";
 import { viewerDataFromAnalysis } from "./from-analysis";
-import { formatClock, locate, pairsDone, segmentEndingAfter } from "./playback";
+import { compactTimeline, formatClock, locate, pairsDone, pausesOf, segmentEndingAfter, timelineOf } from "./playback";
 import { Box3, offsetBoxes, placeOffsets, sceneBox, travelBox, unitFactor } from "./placement";
 import { buildIndices, segmentsOfLine, vertexAttributes } from "./render-buffers";
 
@@ -92,18 +92,28 @@ describe("playback on the time estimate", () => {
     // halfway along the first cut of 40 mm (line 7)
     const cut = Array.from(path.line).indexOf(7);
     const mid = (path.startTime[cut]! + path.time[cut]!) / 2;
-    const at = locate(path, mid);
+    const tl = timelineOf(path);
+    const at = locate(tl, mid);
     expect(at.segment).toBe(cut);
     expect(at.phase).toBe("moving");
     expect(at.x).toBeCloseTo(20, 3);
     // the 30 s change to T2 (line 16) sits before the first segment written after it
     const afterChange = Array.from(path.line).findIndex((l) => l > 16);
     expect(path.startTime[afterChange]! - path.time[afterChange - 1]!).toBeCloseTo(30, 4);
-    const pauseAt = locate(path, path.time[afterChange - 1]! + 10);
+    const pauseAt = locate(tl, path.time[afterChange - 1]! + 10);
     expect(pauseAt.phase).toBe("pause");
     expect(pauseAt.pause).toBe("tool-change");
     expect(pauseAt.segment).toBe(afterChange);
-    expect(locate(path, 1e9).phase).toBe("end");
+    expect(locate(tl, 1e9).phase).toBe("end");
+    // the page's compact form (end times, sparse pauses, per-vertex bytes) tells the same
+    const compact = compactTimeline(path.positions, path.time, pausesOf(path), vertexAttributes(path));
+    for (let i = 0; i < path.segmentCount; i++) {
+      expect(compact.start(i)).toBe(path.startTime[i]);
+      expect(compact.kind(i)).toBe(path.kind[i]);
+      expect(compact.tool(i)).toBe(path.tool[i]);
+    }
+    expect(locate(compact, pauseAt.x)).toEqual(locate(tl, pauseAt.x));
+    expect(pausesOf(path).at.length).toBeLessThan(path.segmentCount / 2);
     expect(formatClock(3725.9)).toBe("1:02:05");
     expect(formatClock(65)).toBe("1:05");
   });
