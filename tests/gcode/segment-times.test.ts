@@ -100,7 +100,7 @@ describe("segment times", () => {
 
   it("times never go back, and the last end matches totalSeconds on the posts fixtures and a bench slice", () => {
     const dir = new URL("../fixtures/posts/", import.meta.url);
-    const files = ["two-vise-by-tool.nc", "two-vise-by-part.nc"].map((f) => readFileSync(new URL(`../${f}`, dir)));
+    const files: Uint8Array[] = ["two-vise-by-tool.nc", "two-vise-by-part.nc"].map((f) => readFileSync(new URL(`../${f}`, dir)));
     files.push(new TextEncoder().encode(benchProgram(20_000)));
     for (const bytes of files) {
       const a = analyzeProgram(bytes, { machine, segmentTimes: true });
