@@ -1,5 +1,5 @@
 import "server-only";
-import { eq } from "drizzle-orm";
+import { and, desc, eq, ne } from "drizzle-orm";
 import { db } from "@/db";
 import { machines, programs, revisions } from "@/db/schema";
 import { authorize } from "@/lib/auth/session";
@@ -33,5 +33,49 @@ export async function getToolpathSource(id: number): Promise<ToolpathSource | nu
       if (!bytes) throw new Error(`the bytes of ${row.sha256} are missing`);
       return bytes;
     },
+  };
+}
+
+/** What the revision page's backplot needs besides the path: the machine, the options, the other revisions. */
+export interface BackplotSetup {
+  revisionNumber: number;
+  options: AnalyzeOptions;
+  machine: {
+    id: number;
+    name: string;
+    units: "mm" | "inch";
+    travel: { x: { min: number; max: number }; y: { min: number; max: number }; z: { min: number; max: number } };
+    manualToolChange: boolean;
+  };
+  /** The program's other revisions, newest first. */
+  otherRevisions: { id: number; number: number; status: string }[];
+}
+
+export async function getBackplotSetup(revisionId: number): Promise<BackplotSetup | null> {
+  await authorize("readPrograms");
+  const [row] = await db()
+    .select({ number: revisions.number, programId: revisions.programId, machine: machines, safeZ: programs.safeZ, partsPerCycle: programs.partsPerCycle })
+    .from(revisions)
+    .innerJoin(programs, eq(programs.id, revisions.programId))
+    .innerJoin(machines, eq(machines.id, programs.machineId))
+    .where(eq(revisions.id, revisionId));
+  if (!row) return null;
+  const others = await db()
+    .select({ id: revisions.id, number: revisions.number, status: revisions.status })
+    .from(revisions)
+    .where(and(eq(revisions.programId, row.programId), ne(revisions.id, revisionId)))
+    .orderBy(desc(revisions.number));
+  const m = row.machine;
+  return {
+    revisionNumber: row.number,
+    options: analysisOptions(m, row),
+    machine: {
+      id: m.id,
+      name: m.name,
+      units: m.units,
+      travel: { x: { min: m.travelXMin, max: m.travelXMax }, y: { min: m.travelYMin, max: m.travelYMax }, z: { min: m.travelZMin, max: m.travelZMax } },
+      manualToolChange: m.manualToolChange,
+    },
+    otherRevisions: others,
   };
 }

@@ -24,8 +24,8 @@ describe("GET /api/revisions/{id}/toolpath", () => {
     const res = await get(rev.id, { "accept-encoding": "gzip, deflate, br" });
     expect(res.status).toBe(200);
     expect(res.headers.get("content-type")).toBe(TOOLPATH_MEDIA_TYPE);
-    expect(res.headers.get("content-encoding")).toBe("br");
-    expect(res.headers.get("cache-control")).toBe("private, no-cache");
+    expect(res.headers.get("x-cyclegate-encoding")).toBe("br");
+    expect(res.headers.get("cache-control")).toBe("private, no-cache, no-transform");
     const etag = res.headers.get("etag")!;
     expect(etag).toContain(rev.sha256);
     const { path, meta } = decodeToolpath(brotliDecompressSync(Buffer.from(await res.arrayBuffer())));
@@ -40,10 +40,10 @@ describe("GET /api/revisions/{id}/toolpath", () => {
     expect(meta.tools.map((t) => t.number)).toEqual([1]);
 
     const gz = await get(rev.id, { "accept-encoding": "gzip" });
-    expect(gz.headers.get("content-encoding")).toBe("gzip");
+    expect(gz.headers.get("x-cyclegate-encoding")).toBe("gzip");
     expect(decodeToolpath(gunzipSync(Buffer.from(await gz.arrayBuffer()))).path.segmentCount).toBe(path.segmentCount);
     const plain = await get(rev.id, { "accept-encoding": "br;q=0, gzip;q=0" });
-    expect(plain.headers.get("content-encoding")).toBeNull();
+    expect(plain.headers.get("x-cyclegate-encoding")).toBeNull();
     expect(decodeToolpath(new Uint8Array(await plain.arrayBuffer())).path.segmentCount).toBe(path.segmentCount);
 
     const again = await get(rev.id, { "if-none-match": etag });

@@ -2,7 +2,8 @@ import { gunzipSync } from "node:zlib";
 import { RequestError } from "@/lib/auth/errors";
 import { authorize } from "@/lib/auth/session";
 import { getToolpathSource } from "@/lib/dal/toolpath";
-import { parseId, route } from "@/lib/http";
+import { acceptsCoding, parseId, route } from "@/lib/http";
+import { PRECOMPRESSED_HEADER } from "@/lib/security-headers";
 import { TOOLPATH_MEDIA_TYPE } from "@/lib/viewer/toolpath-format";
 import { cachedToolpath, toolpathAnswer, toolpathEtag } from "@/lib/viewer/toolpath-service";
 
@@ -10,20 +11,9 @@ export const dynamic = "force-dynamic";
 
 type Ctx = { params: Promise<{ id: string }> };
 
-/** Whether an Accept-Encoding header accepts `coding` (a q of 0 refuses it). */
-function accepts(header: string | null, coding: string): boolean {
-  if (!header) return false;
-  return header.split(",").some((part) => {
-    const [name, ...params] = part.trim().toLowerCase().split(";");
-    if (name !== coding && name !== "*") return false;
-    const q = params.map((p) => p.trim()).find((p) => p.startsWith("q="));
-    return !q || Number(q.slice(2)) > 0;
-  });
-}
-
 /**
  * The revision's toolpath for the 3D backplot in the CGTP layout (lib/viewer/toolpath-format.ts), brotli or gzip as
- * the client accepts. The same file, engine and options always give the same answer: it is built once, cached, and
+ * the client accepts (compressed when built, so a cached answer costs no compression). The same file, engine and options always give the same answer: it is built once, cached, and
  * revalidated with its ETag (304 without a body).
  */
 export const GET = route<Ctx>(async (req, { params }) => {
@@ -33,8 +23,9 @@ export const GET = route<Ctx>(async (req, { params }) => {
   const etag = toolpathEtag(source.sha256, source.options);
   const headers: Record<string, string> = {
     ETag: etag,
-    // private: it needs a session; no-cache: the browser keeps it and asks with If-None-Match each time
-    "Cache-Control": "private, no-cache",
+    // private: it needs a session; no-cache: the browser keeps it and asks with If-None-Match each time;
+    // no-transform: it is compressed already
+    "Cache-Control": "private, no-cache, no-transform",
     Vary: "Accept-Encoding",
     "X-Content-Type-Options": "nosniff",
   };
@@ -47,13 +38,14 @@ export const GET = route<Ctx>(async (req, { params }) => {
     ? "cache;desc=hit"
     : `engine;dur=${answer.timing.engine.toFixed(0)}, encode;dur=${answer.timing.encode.toFixed(0)}, compress;dur=${answer.timing.compress.toFixed(0)}, total;dur=${(performance.now() - t0).toFixed(0)}`;
   const enc = req.headers.get("accept-encoding");
-  const [body, coding] = accepts(enc, "br") ? [answer.br, "br"] : accepts(enc, "gzip") ? [answer.gzip, "gzip"] : [new Uint8Array(gunzipSync(answer.gzip)), null];
+  const [body, coding] = acceptsCoding(enc, "br") ? [answer.br, "br"] : acceptsCoding(enc, "gzip") ? [answer.gzip, "gzip"] : [new Uint8Array(gunzipSync(answer.gzip)), null];
   return new Response(body as Uint8Array<ArrayBuffer>, {
     headers: {
       ...headers,
       "Content-Type": TOOLPATH_MEDIA_TYPE,
       "Content-Length": String(body.byteLength),
-      ...(coding && { "Content-Encoding": coding }),
+      // Next drops Content-Encoding from route handlers; scripts/serve.ts restores it from this header
+      ...(coding && { [PRECOMPRESSED_HEADER]: coding }),
       "X-Toolpath-Segments": String(answer.segments),
       "X-Toolpath-Size": String(answer.size),
       "Server-Timing": timing,
