@@ -14,7 +14,7 @@ import type { AnalyzeOptions, Units } from "@/lib/gcode/types";
 import { MotionKind } from "@/lib/gcode/types";
 import { Box3, placeOffsets, travelBox, type EnteredOffset, type Xyz } from "@/lib/viewer/placement";
 import { compactTimeline, formatClock, locate, segmentStart, type PlayState } from "@/lib/viewer/playback";
-import { toolByte } from "@/lib/viewer/render-buffers";
+import { toolByte, type StyleIndices } from "@/lib/viewer/render-buffers";
 import { ViewerController, type FrameInfo, type ViewPreset } from "./controller";
 import type { ColorMode } from "./materials";
 import type { PathBuffers, PathSource } from "./messages";
@@ -100,10 +100,19 @@ export function Backplot(props: BackplotProps) {
 function BackplotViewer(props: BackplotProps) {
   const { revisionId, machine } = props;
   // fetch the 3D code while the path loads, not after
-  useEffect(() => void import("./scene"), []);
+  useEffect(() => {
+    performance.mark("backplot:start");
+    void import("./scene");
+  }, []);
   const { selection, selectLine } = useRevisionWorkspace();
   const [source] = useState<PathSource>(pathSource);
-  const request = useMemo(() => ({ revisionId, options: props.options, source }), [revisionId, props.options, source]);
+  // the "bytes" way takes the file the code pane downloads anyway (its query, observed without fetching again)
+  const shared = useQuery<{ bytes: Uint8Array }>({ queryKey: ["revision-bytes", revisionId], enabled: false });
+  const sharedBytes = source === "bytes" ? shared.data?.bytes : undefined;
+  const request = useMemo(
+    () => (source === "bytes" && !sharedBytes ? null : { revisionId, options: props.options, source, bytes: sharedBytes }),
+    [revisionId, props.options, source, sharedBytes],
+  );
 
   // ---- what is shown ----
   const [colorMode, setColorMode] = useState<ColorMode>("kind");
@@ -193,6 +202,14 @@ function BackplotViewer(props: BackplotProps) {
 
   // ---- playback on the time estimate ----
   const controller = useMemo(() => new ViewerController(), []);
+  useEffect(() => {
+    // npm run bench:viewer times frames through this handle; nobody else gets it
+    try {
+      if (window.localStorage.getItem("cyclegate.backplot.bench") === "1") (window as unknown as { __cyclegateBackplot?: ViewerController }).__cyclegateBackplot = controller;
+    } catch {
+      // no storage: no bench
+    }
+  }, [controller]);
   const timeline = useMemo(() => (buffers ? compactTimeline(buffers.positions, buffers.time, buffers.pauses, buffers.vattr) : null), [buffers]);
   // the estimate's total: what runs after the last drawn move (a move from an unknown point, a last dwell) counts too
   const total = buffers && meta ? Math.max(meta.totalSeconds, buffers.time[buffers.time.length - 1] ?? 0) : 0;
@@ -375,6 +392,8 @@ function BackplotViewer(props: BackplotProps) {
       data-drawn={drawn ? "1" : undefined}
       data-full-drawn={drawn?.full ? "1" : undefined}
       data-source={ready?.report.source}
+      data-segments={buffers?.time.length}
+      data-buffer-bytes={ready ? bufferBytes(ready.buffers, ready.indices) : undefined}
       data-color-mode={colorMode}
       data-space={machineSpace ? "machine" : "part"}
       className={`flex min-h-0 flex-col overflow-hidden rounded-lg border border-rule bg-panel ${props.className ?? ""}`}
@@ -630,6 +649,12 @@ function BackplotViewer(props: BackplotProps) {
       </div>
     </section>
   );
+}
+
+/** Bytes of the typed arrays the page keeps for the path (each buffer once). */
+function bufferBytes(b: PathBuffers, ix: StyleIndices): number {
+  const arrays = [b.positions, b.vattr, b.line, b.time, b.pauses.at, b.pauses.start, ix.cut, ix.rapid, ix.cutCoarse, ix.rapidCoarse];
+  return Array.from(new Set(arrays.map((a) => a.buffer))).reduce((n, buf) => n + buf.byteLength, 0);
 }
 
 function toggled(s: ReadonlySet<number>, i: number): ReadonlySet<number> {

@@ -30,6 +30,10 @@ export class ViewerController {
   setView: (preset: ViewPreset) => void = () => {};
   fit: () => void = () => {};
   invalidate: () => void = () => {};
-  /** Milliseconds the last frames took to render (for the bench), most recent last. */
-  frameTimes: number[] = [];
+  /**
+   * Set by `npm run bench:viewer` (through window.__cyclegateBackplot, only where localStorage asks for it): every
+   * frame then waits for the GPU and records how long it took, and how long the page's thread spent issuing it.
+   */
+  timing = false;
+  frames: { ms: number; cpuMs: number; coarse: boolean; segments: number }[] = [];
 }

@@ -15,6 +15,8 @@ export interface PathRequest {
   revisionId: number;
   options: AnalyzeOptions;
   source: PathSource;
+  /** "bytes": the file as the page already has it (the code pane's download); fetched when absent. */
+  bytes?: Uint8Array;
 }
 
 export type ToWorker =
@@ -43,6 +45,8 @@ export interface LoadReport {
   /** Bytes received (compressed, as on the wire) and how long fetching and making the path took, ms. */
   wireBytes: number;
   fetchMs: number;
+  /** Of the fetch: until the server started to answer. */
+  waitMs: number;
   buildMs: number;
   buffersMs: number;
   /** The route fell back to the bytes: why. */

@@ -1,4 +1,4 @@
-import { getBackplotSetup } from "@/lib/dal/toolpath";
+import { getBackplotSetup, prewarmToolpath } from "@/lib/dal/toolpath";
 import { listWorkOffsets } from "@/lib/dal/work-offsets";
 import { Backplot } from "./backplot";
 
@@ -9,6 +9,7 @@ import { Backplot } from "./backplot";
 export async function RevisionBackplot({ revisionId, className }: { revisionId: number; className?: string }) {
   const setup = await getBackplotSetup(revisionId);
   if (!setup) return null;
+  await prewarmToolpath(revisionId);
   const offsets = await listWorkOffsets(setup.machine.id);
   return (
     <Backplot

@@ -341,12 +341,13 @@ function SceneContent(p: SceneProps) {
     }
     const t0 = performance.now();
     gl.render(scene, camera);
-    if (framesSignalled.current < 3 || q.controller.frameTimes.length > 0) {
+    const issued = performance.now();
+    if (framesSignalled.current < 3 || q.controller.timing) {
       // the first frames, and frames the bench is timing: wait for the GPU (a one-pixel read) to know it is drawn
       const ctx = gl.getContext();
-      ctx.readPixels(0, 0, 1, 1, ctx.RGBA, ctx.UNSIGNED_BYTE, new Uint8Array(4));
+      ctx.readPixels(0, 0, 1, 1, ctx.RGBA, ctx.UNSIGNED_BYTE, pixel);
       const at = performance.now();
-      if (q.controller.frameTimes.length > 0 || framesSignalled.current >= 3) q.controller.frameTimes.push(at - t0);
+      if (q.controller.timing) q.controller.frames.push({ ms: at - t0, cpuMs: issued - t0, coarse, segments: drawn });
       if (framesSignalled.current < 3) {
         framesSignalled.current++;
         q.onFrame({ at, coarse, segments: drawn });
@@ -595,6 +596,7 @@ function MeasureLine({ points }: { points: Xyz[] }) {
 const toolScale = (cam: THREE.OrthographicCamera) => 40 / 12 / cam.zoom;
 
 const projected = new THREE.Vector3();
+const pixel = new Uint8Array(4);
 
 /** Places the DOM markers over the canvas where their points are after this frame's camera. */
 function placeMarkers(p: SceneProps, cam: THREE.OrthographicCamera, size: { width: number; height: number }): void {

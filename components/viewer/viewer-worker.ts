@@ -28,15 +28,18 @@ class HttpError extends Error {
   }
 }
 
-async function fetchBytes(url: string): Promise<{ bytes: Uint8Array; wire: number }> {
+async function fetchBytes(url: string): Promise<{ bytes: Uint8Array; wire: number; waitMs: number }> {
   const res = await fetch(url, { credentials: "same-origin" });
   if (!res.ok) throw new HttpError(res.status);
   const bytes = new Uint8Array(await res.arrayBuffer());
-  // bytes on the wire (compressed), from the resource timing of this very fetch
+  // bytes on the wire (compressed; next to nothing for a 304 from the cache), from this fetch's resource timing
   const entries = performance.getEntriesByName(res.url || new URL(url, self.location.href).href) as PerformanceResourceTiming[];
-  const wire = entries.at(-1)?.encodedBodySize || bytes.length;
+  const timing = entries.at(-1);
+  const wire = timing ? timing.transferSize || timing.encodedBodySize : bytes.length;
+  // how long the server took to start answering (the rest of the fetch is the transfer)
+  const waitMs = timing ? timing.responseStart - timing.startTime : 0;
   performance.clearResourceTimings();
-  return { bytes, wire };
+  return { bytes, wire, waitMs };
 }
 
 async function loadPath(req: PathRequest): Promise<{ path: ViewerPath; meta: ViewerMeta; report: LoadReport }> {
@@ -44,10 +47,10 @@ async function loadPath(req: PathRequest): Promise<{ path: ViewerPath; meta: Vie
   let fallback: string | null = null;
   if (req.source === "route") {
     try {
-      const { bytes, wire } = await fetchBytes(`/api/revisions/${req.revisionId}/toolpath`);
+      const { bytes, wire, waitMs } = await fetchBytes(`/api/revisions/${req.revisionId}/toolpath`);
       const t1 = performance.now();
       const data = decodeToolpath(bytes);
-      return { ...data, report: { source: "route", wireBytes: wire, fetchMs: t1 - t0, buildMs: performance.now() - t1, buffersMs: 0, fallback } };
+      return { ...data, report: { source: "route", wireBytes: wire, fetchMs: t1 - t0, waitMs, buildMs: performance.now() - t1, buffersMs: 0, fallback } };
     } catch (e) {
       // a refusal is final; anything else (a busy or failing server, a malformed answer) falls back to the file
       if (e instanceof HttpError && (e.status === 401 || e.status === 403 || e.status === 404)) throw e;
@@ -55,10 +58,10 @@ async function loadPath(req: PathRequest): Promise<{ path: ViewerPath; meta: Vie
     }
   }
   const t1 = performance.now();
-  const { bytes, wire } = await fetchBytes(`/api/revisions/${req.revisionId}/file`);
+  const { bytes, wire, waitMs } = req.bytes && !fallback ? { bytes: req.bytes, wire: 0, waitMs: 0 } : await fetchBytes(`/api/revisions/${req.revisionId}/file`);
   const t2 = performance.now();
   const data = viewerDataFromAnalysis(analyzeProgram(bytes, { ...req.options, segmentTimes: true }));
-  return { ...data, report: { source: "bytes", wireBytes: wire, fetchMs: t2 - t1, buildMs: performance.now() - t2, buffersMs: 0, fallback } };
+  return { ...data, report: { source: "bytes", wireBytes: wire, fetchMs: t2 - t1, waitMs, buildMs: performance.now() - t2, buffersMs: 0, fallback } };
 }
 
 /** `a` itself when it owns its whole buffer (so it can be handed over), else a copy that does. */

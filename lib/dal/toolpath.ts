@@ -5,6 +5,7 @@ import { machines, programs, revisions } from "@/db/schema";
 import { authorize } from "@/lib/auth/session";
 import type { AnalyzeOptions } from "@/lib/gcode/types";
 import { analysisOptions, readFileBytes } from "@/lib/jobs/analysis";
+import { toolpathAnswer, toolpathEtag } from "@/lib/viewer/toolpath-service";
 
 /** What the toolpath of a revision is made from: its file and the options its analysis runs with. */
 export interface ToolpathSource {
@@ -78,4 +79,14 @@ export async function getBackplotSetup(revisionId: number): Promise<BackplotSetu
     },
     otherRevisions: others,
   };
+}
+
+/**
+ * Starts building a revision's toolpath answer now (while its page renders), so the browser's request, which comes
+ * after the page has loaded, finds it built or under way. Errors are left to that request.
+ */
+export async function prewarmToolpath(id: number): Promise<void> {
+  const source = await getToolpathSource(id);
+  if (!source) return;
+  toolpathAnswer(toolpathEtag(source.sha256, source.options), source.readBytes, source.options).catch(() => undefined);
 }

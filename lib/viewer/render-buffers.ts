@@ -6,8 +6,8 @@
  *   attribute from a line's last vertex, so segment i is drawn with the bytes of vertex i + 1;
  * - per style (cutting moves, rapids) an index of vertex pairs of the segments shown (hidden tools, hidden
  *   offsets, rapids off and Jumps are simply not in it), in path order, so a playback reveals it with drawRange;
- * - the same as a coarse index for moving the view: runs of segments alike in kind, tool and offset are drawn
- *   every k-th vertex, k chosen so at most `coarseTarget` pairs are drawn.
+ * - the same as a coarse index for moving the view, about `coarseTarget` pairs: long runs of segments alike in
+ *   kind, tool and offset are drawn through every k-th vertex, and of short runs every k-th segment is kept.
  */
 import { MotionKind, NO_TOOL } from "../gcode/types";
 
@@ -105,16 +105,23 @@ export function buildIndices(
   const coarse = (want: number): Uint32Array => {
     if (step === 1) return want === CUT ? cut : rapid;
     const out: number[] = [];
+    let sampled = 0;
     let i = 0;
     while (i < n) {
       if (cls[i] !== want) {
         i++;
         continue;
       }
-      // a run of segments alike in style, kind, tool and offset, drawn every `step` vertices
+      // a run of segments alike in style, kind, tool and offset
       let end = i + 1;
       while (end < n && cls[end] === want && path.kind[end] === path.kind[i] && path.tool[end] === path.tool[i] && path.offset[end] === path.offset[i]) end++;
-      for (let v = i; v < end; v += step) out.push(v, Math.min(v + step, end));
+      if (end - i >= step) {
+        // a long run (a contour, a surfacing pass): drawn through every step-th vertex
+        for (let v = i; v < end; v += step) out.push(v, Math.min(v + step, end));
+      } else {
+        // short runs (drilling cycles alternate feed and rapid every move): every step-th of their segments
+        for (let k = i; k < end; k++) if (sampled++ % step === 0) out.push(k, k + 1);
+      }
       i = end;
     }
     return Uint32Array.from(out);

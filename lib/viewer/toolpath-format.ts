@@ -52,7 +52,6 @@ export function positionStep(chordTolerance: number, positions: Float32Array): n
 }
 
 const zig = (v: number) => ((v << 1) ^ (v >> 31)) >>> 0;
-const unzig = (u: number) => (u >>> 1) ^ -(u & 1);
 
 /** Writes `count` 32-bit values into 4 planes at `o`. */
 function planes4(out: Uint8Array, o: number, count: number, value: (i: number) => number): number {
@@ -149,25 +148,29 @@ export function decodeToolpath(bytes: Uint8Array): { path: ViewerPath; meta: Vie
   const meta = JSON.parse(new TextDecoder().decode(bytes.subarray(HEADER, HEADER + m))) as ViewerMeta;
   const b = bytes;
   let o = start;
-  const read4 = (count: number, each: (i: number, v: number) => void) => {
-    const p1 = o + count, p2 = p1 + count, p3 = p2 + count;
-    for (let i = 0; i < count; i++) each(i, (b[o + i]! | (b[p1 + i]! << 8) | (b[p2 + i]! << 16) | (b[p3 + i]! << 24)) >>> 0);
-    o += 4 * count;
-  };
+  // plain loops (this runs over millions of rows): value i of a 4-plane block at o is its bytes at o+i, o+n+i, ...
   const positions = new Float32Array(nv * 3);
   for (let axis = 0; axis < 3; axis++) {
+    const p1 = o + nv, p2 = p1 + nv, p3 = p2 + nv;
     let s = 0;
-    read4(nv, (i, v) => {
-      s += unzig(v);
+    for (let i = 0; i < nv; i++) {
+      const u = (b[o + i]! | (b[p1 + i]! << 8) | (b[p2 + i]! << 16) | (b[p3 + i]! << 24)) >>> 0;
+      s += (u >>> 1) ^ -(u & 1);
       positions[i * 3 + axis] = s * q;
-    });
+    }
+    o += 4 * nv;
   }
   const line = new Uint32Array(n);
-  let l = 0;
-  read4(n, (i, v) => {
-    l += unzig(v);
-    line[i] = l;
-  });
+  {
+    const p1 = o + n, p2 = p1 + n, p3 = p2 + n;
+    let l = 0;
+    for (let i = 0; i < n; i++) {
+      const u = (b[o + i]! | (b[p1 + i]! << 8) | (b[p2 + i]! << 16) | (b[p3 + i]! << 24)) >>> 0;
+      l += (u >>> 1) ^ -(u & 1);
+      line[i] = l;
+    }
+    o += 4 * n;
+  }
   const kind = b.slice(o, o + n);
   o += n;
   const tool = new Uint16Array(n);
@@ -176,16 +179,18 @@ export function decodeToolpath(bytes: Uint8Array): { path: ViewerPath; meta: Vie
   const offset = b.slice(o, o + n);
   o += n;
   const time = new Float32Array(n);
-  const ends = new Float64Array(n);
-  let e = 0;
-  read4(n, (i, v) => {
-    e += unzig(v);
-    ends[i] = e;
-    time[i] = e * ts;
-  });
   const startTime = new Float32Array(n);
-  read4(n, (i, v) => {
-    startTime[i] = ((i > 0 ? ends[i - 1]! : 0) + unzig(v)) * ts;
-  });
+  {
+    const e1 = o + n, e2 = e1 + n, e3 = e2 + n;
+    const s0 = o + 4 * n, s1 = s0 + n, s2 = s1 + n, s3 = s2 + n;
+    let e = 0;
+    for (let i = 0; i < n; i++) {
+      const pu = (b[s0 + i]! | (b[s1 + i]! << 8) | (b[s2 + i]! << 16) | (b[s3 + i]! << 24)) >>> 0;
+      startTime[i] = (e + ((pu >>> 1) ^ -(pu & 1))) * ts;
+      const eu = (b[o + i]! | (b[e1 + i]! << 8) | (b[e2 + i]! << 16) | (b[e3 + i]! << 24)) >>> 0;
+      e += (eu >>> 1) ^ -(eu & 1);
+      time[i] = e * ts;
+    }
+  }
   return { path: { segmentCount: n, positions, line, kind, tool, offset, time, startTime }, meta };
 }

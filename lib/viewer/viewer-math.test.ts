@@ -6,6 +6,7 @@ import { viewerDataFromAnalysis } from "./from-analysis";
 import { compactTimeline, formatClock, locate, pairsDone, pausesOf, segmentEndingAfter, timelineOf } from "./playback";
 import { Box3, offsetBoxes, placeOffsets, sceneBox, travelBox, unitFactor } from "./placement";
 import { buildIndices, segmentsOfLine, vertexAttributes } from "./render-buffers";
+import { benchProgram } from "../../scripts/bench-program";
 
 const machine = {
   units: "mm" as const,
@@ -149,6 +150,20 @@ describe("render buffers", () => {
     expect(attrs[(full.cut[1]!) * 4]).toBe(path.kind[full.cut[0]!]);
     const seg = segmentsOfLine(path, 7);
     expect(seg.length).toBe(2); // one move on line 7 (line 13 cuts the same under G55)
+  });
+});
+
+describe("the coarse index for moving the view", () => {
+  it("stays near its target on a program of drilling cycles (kinds alternating every move) and long passes", () => {
+    const { path } = viewerDataFromAnalysis(analyzeProgram(benchProgram(60_000), { segmentTimes: true }));
+    const all = { tools: new Uint8Array(256).fill(1), offsets: new Uint8Array(256).fill(1), rapids: true };
+    const ix = buildIndices(path, all, 5000);
+    const pairs = (ix.cutCoarse.length + ix.rapidCoarse.length) / 2;
+    expect(ix.shown).toBeGreaterThan(50_000);
+    expect(pairs).toBeLessThan(5000 * 1.6);
+    expect(pairs).toBeGreaterThan(5000 * 0.5);
+    // every pair runs forward along the path
+    for (let k = 0; k < ix.cutCoarse.length; k += 2) expect(ix.cutCoarse[k + 1]).toBeGreaterThan(ix.cutCoarse[k]!);
   });
 });
 
