@@ -51,6 +51,7 @@ export interface BackplotProps {
 const SPEEDS = [1, 10, 60, 300, 1800] as const;
 const speedLabel = (s: number) => (s < 60 ? `${s}×` : `${s / 60} min/s`);
 const MAX_MARKERS = 300;
+const NONE: never[] = [];
 
 /** WebGL 2 in this browser: null until known (server render, first paint). */
 function useWebGL2(): boolean | null {
@@ -244,7 +245,11 @@ function BackplotViewer(props: BackplotProps) {
   );
 
   useEffect(() => {
-    if (!playing) return;
+    // on pause the code pane catches up with the tool at once (while playing it follows every 400 ms)
+    if (!playing) {
+      if (timeRef.current > 0) applyTime(timeRef.current, "now");
+      return;
+    }
     let raf = 0;
     let last = performance.now();
     const step = (now: number) => {
@@ -277,6 +282,7 @@ function BackplotViewer(props: BackplotProps) {
   };
 
   const stopPlayback = () => {
+    timeRef.current = 0;
     setPlaying(false);
     setPlayTime(null);
     setStatus(null);
@@ -453,17 +459,21 @@ function BackplotViewer(props: BackplotProps) {
       </div>
 
       <div className="relative min-h-0 flex-1 bg-[#1c2430] outline-none focus-visible:ring-2" tabIndex={0} onKeyDown={onKeyDown} data-testid="backplot-stage" aria-label="3D view; press ? for the keyboard shortcuts">
-        {load.state === "ready" && buffers && ready && placement ? (
+        {load.state === "error" ? (
+          <p role="alert" className="p-4 text-sm text-red-200">
+            The toolpath could not be loaded ({load.message}). The code and the checks on this page are not affected.
+          </p>
+        ) : (
           <Scene
             buffers={buffers}
-            indices={ready.indices}
+            indices={ready?.indices ?? null}
             colorMode={colorMode}
             machineSpace={machineSpace}
-            origins={placement.origins}
+            origins={placement?.origins ?? NONE}
             boxes={boxes}
             offsetShown={offsetShown}
             travel={travel}
-            safeZ={meta!.safeZ}
+            safeZ={meta?.safeZ ?? 0}
             units={u}
             highlight={highlight}
             overlay={overlayBuffers}
@@ -475,12 +485,9 @@ function BackplotViewer(props: BackplotProps) {
             onFrame={onFrame}
             onGrid={setGridSpacing}
           />
-        ) : load.state === "error" ? (
-          <p role="alert" className="p-4 text-sm text-red-200">
-            The toolpath could not be loaded ({load.message}). The code and the checks on this page are not affected.
-          </p>
-        ) : (
-          <p role="status" className="p-4 text-sm text-slate-300">
+        )}
+        {load.state === "loading" && (
+          <p role="status" className="absolute inset-x-0 top-1/2 text-center text-sm text-slate-300">
             Loading the toolpath…
           </p>
         )}

@@ -68,7 +68,9 @@ export interface SceneProps {
   onGrid: (spacing: number) => void;
 }
 
-export default function Scene(props: SceneProps) {
+/** The canvas comes up with the page (the WebGL context is ready before the path is); the path when it is in. */
+export default function Scene(props: Omit<SceneProps, "buffers" | "indices"> & { buffers: PathBuffers | null; indices: StyleIndices | null }) {
+  const { buffers, indices } = props;
   return (
     <Canvas
       orthographic
@@ -85,12 +87,37 @@ export default function Scene(props: SceneProps) {
       aria-label="3D view of the toolpath"
       role="img"
     >
-      <SceneContent {...props} />
+      {/* before the path is in, an empty one: the shaders compile and the buffers upload while it loads */}
+      <SceneContent {...props} buffers={buffers ?? EMPTY_BUFFERS} indices={indices ?? EMPTY_INDICES} />
     </Canvas>
   );
 }
 
 const STILL_AFTER_MS = 220;
+
+const EMPTY_BUFFERS: PathBuffers = {
+  meta: {
+    engineVersion: 0,
+    units: "mm",
+    lineCount: 0,
+    chordTolerance: 0.01,
+    safeZ: 0,
+    totalSeconds: 0,
+    bounds: { min: { x: null, y: null, z: null }, max: { x: null, y: null, z: null } },
+    tools: [],
+    workOffsets: [],
+    findings: [],
+    truncated: false,
+  },
+  positions: new Float32Array(6),
+  vattr: new Uint8Array(8),
+  line: new Uint32Array(0),
+  time: new Float32Array(0),
+  pauses: { at: new Uint32Array(0), start: new Float32Array(0) },
+  boxes: [],
+};
+const NO_PAIRS = new Uint32Array(0);
+const EMPTY_INDICES: StyleIndices = { cut: NO_PAIRS, rapid: NO_PAIRS, cutCoarse: NO_PAIRS, rapidCoarse: NO_PAIRS, shown: 0, step: 1 };
 
 function SceneContent(p: SceneProps) {
   const { gl, camera, size, invalidate, scene } = useThree();
@@ -237,7 +264,7 @@ function SceneContent(p: SceneProps) {
   const fitKey = `${p.buffers.positions.length}|${p.machineSpace}`;
   const firstFit = useRef("");
   useEffect(() => {
-    if (firstFit.current === fitKey || size.width === 0) return;
+    if (firstFit.current === fitKey || size.width === 0 || p.buffers === EMPTY_BUFFERS) return;
     const first = firstFit.current === "";
     firstFit.current = fitKey;
     fitTo.current(first ? new THREE.Vector3(1, -1, 0.9) : undefined);
@@ -342,13 +369,14 @@ function SceneContent(p: SceneProps) {
     const t0 = performance.now();
     gl.render(scene, camera);
     const issued = performance.now();
-    if (framesSignalled.current < 3 || q.controller.timing) {
+    const real = q.buffers !== EMPTY_BUFFERS;
+    if ((real && framesSignalled.current < 3) || q.controller.timing) {
       // the first frames, and frames the bench is timing: wait for the GPU (a one-pixel read) to know it is drawn
       const ctx = gl.getContext();
       ctx.readPixels(0, 0, 1, 1, ctx.RGBA, ctx.UNSIGNED_BYTE, pixel);
       const at = performance.now();
       if (q.controller.timing) q.controller.frames.push({ ms: at - t0, cpuMs: issued - t0, coarse, segments: drawn });
-      if (framesSignalled.current < 3) {
+      if (real && framesSignalled.current < 3) {
         framesSignalled.current++;
         q.onFrame({ at, coarse, segments: drawn });
       }
