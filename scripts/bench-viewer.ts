@@ -16,7 +16,8 @@
  *    backplot), per segment; and what the viewer's own typed arrays add up to.
  */
 import { gzipSync } from "node:zlib";
-import { chromium, type Browser, type Page } from "playwright-core";
+import type { Browser, Page } from "playwright-core";
+import { launchChromium } from "../tests/e2e/chromium";
 import { benchProgram } from "./bench-program";
 import { line, median, ms, startBenchApp, verdict } from "./bench-app";
 
@@ -24,21 +25,6 @@ const DB = "cyclegate_bench_viewer";
 const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 3);
 const TABLET_ROUNDS = Math.min(ROUNDS, 2);
 const PASSWORD = "bench-password-1";
-const CHROMIUM = ["/usr/lib/chromium/chromium", "/usr/bin/chromium"];
-
-const FLAGS = [
-  "--headless",
-  "--no-sandbox",
-  "--disable-gpu",
-  "--disable-quic",
-  "--no-first-run",
-  "--disable-background-networking",
-  "--disable-component-update",
-  "--disable-sync",
-  "--enable-unsafe-swiftshader",
-  "--enable-precise-memory-info",
-];
-
 /** A shop tablet on Wi-Fi: 40 Mbit/s down, 10 up, 20 ms; a CPU about twice as slow as this machine's core. */
 const TABLET = { downloadThroughput: (40e6 / 8) | 0, uploadThroughput: (10e6 / 8) | 0, latency: 20, cpu: 2 };
 
@@ -57,10 +43,8 @@ interface Load {
   buildMs: number;
 }
 
-async function launch(extra: string[] = []): Promise<Browser> {
-  const { existsSync } = await import("node:fs");
-  return chromium.launch({ executablePath: CHROMIUM.find((p) => existsSync(p)), args: [...FLAGS, ...extra] });
-}
+/** Chromium as the browser tests launch it, with precise memory figures. */
+const launch = (extra: string[] = []) => launchChromium(["--enable-precise-memory-info", ...extra]);
 
 async function signedInPage(browser: Browser, base: string, email: string, opts: { source?: "route" | "bytes"; tablet?: boolean } = {}): Promise<Page> {
   const ctx = await browser.newContext({ viewport: { width: 1440, height: 900 } });

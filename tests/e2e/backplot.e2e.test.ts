@@ -2,83 +2,35 @@
  * The 3D backplot in Debian's chromium (WebGL through SwiftShader), checked by reading the canvas's pixels back:
  * the scene marks itself drawn (data-full-drawn), then the test counts pixels of the legend's colours.
  */
-import { chromium, type Page } from "playwright-core";
+import type { Page } from "playwright-core";
 import { beforeAll, describe, expect, it } from "vitest";
 import { analyzeProgram } from "@/lib/gcode";
 import { toMachineProfile, type MachineFields } from "@/lib/machine-profile";
 import { formatClock, locate, timelineOf } from "@/lib/viewer/playback";
 import { viewerDataFromAnalysis } from "@/lib/viewer/from-analysis";
-import { apiSignIn, appUrl, chromiumPath, DEMO_PASSWORD, signIn, useFreshPage } from "./browser";
+import { DEMO_MACHINES } from "@/db/demo-data";
+import { apiSignIn, appUrl, DEMO_PASSWORD, signIn, useFreshPage } from "./browser";
+import { launchChromium } from "./chromium";
 
 const unique = () => Math.random().toString(36).slice(2, 8);
 
-/** A manual-change bench mill of the test's own, so entered offsets and findings are the test's alone. */
-const MACHINE = {
-  notes: "",
-  units: "mm",
-  travelXMin: -400,
-  travelXMax: 0,
-  travelYMin: -200,
-  travelYMax: 0,
-  travelZMin: -250,
-  travelZMax: 0,
-  rapidRate: 5000,
-  maxFeed: 2000,
-  maxSpindle: 6000,
-  acceleration: 400,
-  toolChangeSeconds: 30,
-  manualToolChange: true,
-  spindleProgramControlled: false,
-  hMustEqualT: true,
-  safeZ: 2,
-  workOffsetCount: 6,
-  dialect: "common",
-  arcTolerance: null,
-} as const;
+/** The demo shop's manual-change bench mill under a name of the test's own, so entered offsets are the test's alone. */
+const MACHINE = { ...DEMO_MACHINES[0]!, notes: "" };
 
 /** Two parts (G54, G55) cut by T1, then drilled by T2; one rapid dives below safe Z (a warning, line 29). */
-const TWO_VISES = (tag: string) =>
-  [
-    "%",
-    `O4401 (BACKPLOT TEST ${tag})`,
-    "G90 G94 G17 G40 G49 G80 G21",
-    "T1 M6 (D10 END MILL)",
-    "S3000 M3",
-    "G54 G0 X0 Y0",
-    "G43 H1 Z20",
-    "G0 Z2",
-    "G1 Z-1 F300",
-    "G1 X40 F900",
-    "G1 Y20",
-    "G1 X0",
-    "G1 Y0",
-    "G0 Z20",
-    "G55 G0 X0 Y0",
-    "G0 Z2",
-    "G1 Z-1 F300",
-    "G1 X40 F900",
-    "G1 Y20",
-    "G1 X0",
-    "G1 Y0",
-    "G0 Z20",
-    "G91 G28 Z0",
-    "G90",
-    "T2 M6 (D6 DRILL)",
-    "S2000 M3",
-    "G54 G0 X20 Y10",
-    "G43 H2 Z20",
-    "G0 Z-3",
-    "G1 Z-8 F100",
-    "G0 Z20",
-    "G55 G0 X20 Y10",
-    "G0 Z2",
-    "G1 Z-8 F100",
-    "G0 Z20",
-    "M5",
-    "M30",
-    "%",
-    "",
+const TWO_VISES = (tag: string) => {
+  const outline = (offset: string) => [`${offset} G0 X0 Y0`, ...(offset === "G54" ? ["G43 H1 Z20"] : []), "G0 Z2", "G1 Z-1 F300", "G1 X40 F900", "G1 Y20", "G1 X0", "G1 Y0", "G0 Z20"];
+  const drill = (offset: string) => [`${offset} G0 X20 Y10`, ...(offset === "G54" ? ["G43 H2 Z20", "G0 Z-3"] : ["G0 Z2"]), "G1 Z-8 F100", "G0 Z20"];
+  return [
+    ...["%", `O4401 (BACKPLOT TEST ${tag})`, "G90 G94 G17 G40 G49 G80 G21", "T1 M6 (D10 END MILL)", "S3000 M3"],
+    ...outline("G54"),
+    ...outline("G55"),
+    ...["G91 G28 Z0", "G90", "T2 M6 (D6 DRILL)", "S2000 M3"],
+    ...drill("G54"),
+    ...drill("G55"),
+    ...["M5", "M30", "%", ""],
   ].join("\n");
+};
 
 /** A plate with two pockets and a parking point between them; `dx` moves the right pocket. */
 const PLATE = (tag: string, dx: number) => {
@@ -358,10 +310,7 @@ describe("the 3D backplot", () => {
   });
 
   it("without WebGL says so, and the rest of the revision page still works", async () => {
-    const browser = await chromium.launch({
-      executablePath: chromiumPath(),
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-3d-apis", "--disable-webgl"],
-    });
+    const browser = await launchChromium(["--disable-3d-apis", "--disable-webgl"]);
     try {
       const page = await (await browser.newContext({ viewport: { width: 1280, height: 800 } })).newPage();
       await signIn(page, "operator@cyclegate.test", DEMO_PASSWORD);
