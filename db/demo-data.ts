@@ -224,6 +224,15 @@ export const DEMO_PROGRAMS: DemoProgram[] = [
             "T7 sits in the long-reach holder, whose length is kept under H17 on this control. Checked the offset page at the machine before release.",
         },
       },
+      {
+        file: "o3310-fixture-base-r2.nc",
+        fileName: "O3310-base-plate-op20-r2.nc",
+        uploadedBy: INES,
+        note: "Pocket moved 20 mm towards X+ so the new key of vise 2 clears it; slots and holes unchanged.",
+        daysAgo: 1,
+        status: "submitted",
+        submitComment: "Only the pocket moved: please compare with revision 1 in the 3D view before release.",
+      },
     ],
   },
   {

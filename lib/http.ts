@@ -134,3 +134,14 @@ export function parseId(raw: string): number {
   if (id === null) throw new RequestError(404, "Not found.");
   return id;
 }
+
+/** Whether an Accept-Encoding header accepts `coding` ("br", "gzip"); a q of 0 refuses it, "*" accepts any. */
+export function acceptsCoding(header: string | null, coding: string): boolean {
+  if (!header) return false;
+  return header.split(",").some((part) => {
+    const [name, ...params] = part.trim().toLowerCase().split(";");
+    if (name !== coding && name !== "*") return false;
+    const q = params.map((p) => p.trim()).find((p) => p.startsWith("q="));
+    return !q || Number(q.slice(2)) > 0;
+  });
+}

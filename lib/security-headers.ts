@@ -62,3 +62,39 @@ export function securityHeaders(opts: SecurityHeaderOptions & { path: string }):
     ...(opts.https && { "Strict-Transport-Security": "max-age=31536000" }),
   };
 }
+
+/**
+ * Next drops Content-Encoding (and Content-Length) from what a route handler answers, so a route that sends a body
+ * it compressed itself (the toolpath route's cached brotli, the file route's gzip) names the coding in this header
+ * instead, and scripts/serve.ts turns it into Content-Encoding as the headers go out. Such answers also carry
+ * `Cache-Control: no-transform`, so nothing on the way compresses them again.
+ */
+export const PRECOMPRESSED_HEADER = "x-cyclegate-encoding";
+
+/** The parts of an outgoing answer finalHeaders touches (node:http's ServerResponse has them). */
+export interface OutgoingHeaders {
+  hasHeader(name: string): boolean;
+  getHeader(name: string): unknown;
+  setHeader(name: string, value: string): unknown;
+  removeHeader(name: string): void;
+}
+
+/**
+ * Just before an answer's headers go out: `Cache-Control` from `securityHeaders` unless the answer set its own (a
+ * route handler that revalidates with an ETag), and Content-Encoding for a precompressed body. `late` are headers
+ * passed to writeHead itself, which are applied after this runs.
+ */
+export function finalHeaders(res: OutgoingHeaders, cacheControl: string | undefined, late: unknown): void {
+  const lateNames =
+    late && typeof late === "object"
+      ? Array.isArray(late)
+        ? late.filter((_, i) => i % 2 === 0).map((n) => String(n).toLowerCase())
+        : Object.keys(late).map((n) => n.toLowerCase())
+      : [];
+  if (cacheControl && !res.hasHeader("cache-control") && !lateNames.includes("cache-control")) res.setHeader("Cache-Control", cacheControl);
+  const coding = res.getHeader(PRECOMPRESSED_HEADER);
+  if (coding !== undefined) {
+    res.removeHeader(PRECOMPRESSED_HEADER);
+    if (coding === "br" || coding === "gzip") res.setHeader("Content-Encoding", coding);
+  }
+}

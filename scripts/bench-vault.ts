@@ -13,40 +13,16 @@
  *
  * Figures move with the machine's load: on two shared cores, run it when nothing else is busy.
  */
-import { execFileSync, spawn, type ChildProcess } from "node:child_process";
-import { randomBytes } from "node:crypto";
 import { readFileSync, writeFileSync } from "node:fs";
-import net from "node:net";
-import path from "node:path";
 import { performance } from "node:perf_hooks";
-import { hash } from "@node-rs/argon2";
-import pg from "pg";
-import { ARGON2_OPTIONS } from "../lib/auth/argon2-options";
+import type pg from "pg";
 import { analyzeProgram } from "../lib/gcode/index";
+import { line, median, ms, pct, startBenchApp, verdict } from "./bench-app";
 import { benchProgram } from "./bench-program";
 
-const root = path.resolve(import.meta.dirname, "..");
 const BENCH_DB = "cyclegate_bench";
 const PASSWORD = "bench-password-1";
 const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 3);
-
-const sh = (cmd: string, env: Record<string, string> = {}) =>
-  execFileSync("bash", ["-c", `source scripts/lib.sh && ${cmd}`], { cwd: root, env: { ...process.env, ...env }, encoding: "utf8", stdio: ["ignore", "pipe", "inherit"] }).trim();
-
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)]!;
-const pct = (xs: number[], p: number) => [...xs].sort((a, b) => a - b)[Math.min(xs.length - 1, Math.ceil((p / 100) * xs.length) - 1)]!;
-const ms = (n: number) => `${n.toFixed(0)} ms`;
-const line = (label: string, value: string) => console.log(`  ${label.padEnd(52)} ${value}`);
-const verdict = (ok: boolean) => (ok ? "PASS" : "FAIL");
-
-async function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const s = net.createServer().listen(0, "127.0.0.1", () => {
-      const port = (s.address() as net.AddressInfo).port;
-      s.close(() => resolve(port));
-    });
-  });
-}
 
 function peakRss(pid: number): { rss: number; hwm: number } {
   const status = readFileSync(`/proc/${pid}/status`, "utf8");
@@ -66,70 +42,16 @@ function resetPeak(pid: number): boolean {
 
 async function main() {
   console.log("Cyclegate vault benchmark (throwaway database cyclegate_bench)\n");
-  sh("cg_env_defaults && cg_ensure_node_modules");
-  const wasRunning = (() => {
-    try {
-      sh("bash scripts/pg.sh status >/dev/null 2>&1");
-      return true;
-    } catch {
-      return false;
-    }
-  })();
-  sh("bash scripts/pg.sh start >/dev/null");
-  const mainUrl = sh("bash scripts/pg.sh url");
-  const admin = new pg.Pool({ connectionString: mainUrl, max: 1 });
-  await admin.query(`drop database if exists ${BENCH_DB} with (force)`);
-  const url = sh(`bash scripts/pg.sh ensure-db ${BENCH_DB}`);
-  sh("cg_migrate", { DATABASE_URL: url });
-  sh("cg_env_defaults && cg_build_if_stale >&2");
-
-  const db = new pg.Pool({ connectionString: url, max: 4 });
-  const port = await freePort();
-  const base = `http://127.0.0.1:${port}`;
-  let app: ChildProcess | null = null;
+  const bench = await startBenchApp(BENCH_DB);
+  const { db, base, app } = bench;
   try {
-    const passwordHash = await hash(PASSWORD, ARGON2_OPTIONS);
-    await db.query(
-      `insert into users (email, display_name, role, password_hash) values ('bench-programmer@cyclegate.test', 'Bench programmer', 'programmer', $1)`,
-      [passwordHash],
-    );
     const machine = await db.query<{ id: number }>(
       `insert into machines (name, units, travel_x_min, travel_x_max, travel_y_min, travel_y_max, travel_z_min, travel_z_max,
          rapid_rate, max_feed, max_spindle, acceleration, tool_change_seconds, manual_tool_change, spindle_program_controlled, safe_z, work_offset_count)
        values ('Bench machine', 'mm', -800, 0, -500, 0, -500, 0, 24000, 10000, 12000, 2500, 4, false, true, 2, 54) returning id`,
     );
     const machineId = machine.rows[0]!.id;
-
-    app = spawn(process.execPath, ["--import", "tsx", "scripts/serve.ts"], {
-      cwd: root,
-      env: {
-        ...process.env,
-        NODE_ENV: "production",
-        DATABASE_URL: url,
-        PORT: String(port),
-        APP_URL: base,
-        CYCLEGATE_HOST: "127.0.0.1",
-        SESSION_SECRET: randomBytes(32).toString("hex"),
-        COOKIE_SECURE: "false",
-        CYCLEGATE_WORKER: "true",
-        // Mail is not measured: nothing listens there, the outbox keeps the messages.
-        SMTP_URL: "smtp://127.0.0.1:9",
-      },
-      stdio: ["ignore", "ignore", "inherit"],
-    });
-    for (let i = 0; ; i++) {
-      if (app.exitCode !== null) throw new Error("the app exited");
-      const ok = await fetch(`${base}/api/health`).then((r) => r.ok, () => false);
-      if (ok) break;
-      if (i > 600) throw new Error("the app did not answer");
-      await new Promise((r) => setTimeout(r, 100));
-    }
-    const signIn = await fetch(`${base}/api/session`, {
-      method: "POST",
-      headers: { "content-type": "application/json" },
-      body: JSON.stringify({ email: "bench-programmer@cyclegate.test", password: PASSWORD }),
-    });
-    const cookie = (signIn.headers.get("set-cookie") ?? "").split(";")[0]!;
+    const cookie = await bench.user("bench-programmer@cyclegate.test", "programmer", PASSWORD);
     const call = (p: string, init: RequestInit = {}) => fetch(`${base}${p}`, { ...init, headers: { cookie, ...(init.headers as Record<string, string>) } });
     const part = await (await call("/api/parts", { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ number: "BENCH-1", name: "Bench part" }) })).json();
     const program = await (
@@ -265,15 +187,7 @@ async function main() {
     const p95 = pct(all, 95);
     line("all filters: median / p95 (target < 100 ms)", `${ms(med)} / ${ms(p95)}  ${verdict(med < 100 && p95 < 100)}`);
   } finally {
-    if (app && app.exitCode === null) {
-      app.kill("SIGTERM");
-      await new Promise((r) => app!.once("exit", r));
-    }
-    await db.end();
-    // BENCH_KEEP=1 keeps the database for a look at query plans; the next run drops it anyway.
-    if (process.env.BENCH_KEEP !== "1") await admin.query(`drop database if exists ${BENCH_DB} with (force)`);
-    await admin.end();
-    if (!wasRunning) sh("bash scripts/pg.sh stop >/dev/null");
+    await bench.close();
   }
 }
 

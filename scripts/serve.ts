@@ -17,9 +17,11 @@ import { createServer } from "node:http";
 import path from "node:path";
 import next from "next";
 import { loadEnv } from "../lib/env";
+import { ThreadAnalyser } from "../lib/jobs/analyser";
 import { startWorker, type RunningWorker } from "../lib/jobs/worker";
 import { gateRequest } from "../lib/request-gate";
-import { contentSecurityPolicy, securityHeaders } from "../lib/security-headers";
+import { contentSecurityPolicy, finalHeaders, securityHeaders } from "../lib/security-headers";
+import { offerToolpathBuilder } from "../lib/viewer/toolpath-service";
 
 const FORWARDING_HEADERS = ["x-forwarded-for", "x-forwarded-host", "x-forwarded-port", "x-forwarded-proto", "x-real-ip", "forwarded"];
 /** A refused body is read and thrown away up to this much, so the client sees the answer; past it the connection is cut. */
@@ -33,6 +35,8 @@ const app = next({ dev, dir: path.resolve(import.meta.dirname, ".."), hostname, 
 const handle = app.getRequestHandler();
 
 await app.prepare();
+// The backplot's toolpath answers are built on a thread of their own (GET /api/revisions/{id}/toolpath).
+offerToolpathBuilder(new ThreadAnalyser());
 let worker: RunningWorker | null = null;
 if (env.inProcessWorker) {
   worker = await startWorker({ env, inAppProcess: true });
@@ -42,7 +46,14 @@ const server = createServer((req, res) => {
   if (!env.trustProxy) for (const h of FORWARDING_HEADERS) delete req.headers[h];
   const policy = { nonce: randomBytes(18).toString("base64"), dev, https };
   const path = (req.url ?? "/").split("?")[0] ?? "/";
-  for (const [name, value] of Object.entries(securityHeaders({ ...policy, path }))) res.setHeader(name, value);
+  const { "Cache-Control": cacheControl, ...headers } = securityHeaders({ ...policy, path });
+  for (const [name, value] of Object.entries(headers)) res.setHeader(name, value);
+  // Cache-Control and a precompressed body's coding are settled as the headers go out (finalHeaders says why).
+  const writeHead = res.writeHead;
+  res.writeHead = function (this: typeof res, ...args: Parameters<typeof res.writeHead>) {
+    finalHeaders(res, cacheControl, args.find((a, i) => i > 0 && typeof a === "object"));
+    return writeHead.apply(this, args);
+  } as typeof res.writeHead;
   // Next takes the nonce for its scripts from the request's policy; never from one the client sent.
   req.headers["content-security-policy"] = contentSecurityPolicy(policy);
   delete req.headers["content-security-policy-report-only"];

@@ -47,6 +47,7 @@ const pp = Engine.prototype;
 pp.addSeconds = function (this: Engine, slot: number, sec: number): void {
   this.gS[slot]! += sec;
   this.gS[S_TOTAL_S]! += sec;
+  this.clock += sec;
   this.tS[this.toolSlot * SSTRIDE + slot]! += sec;
   this.tS[this.toolSlot * SSTRIDE + S_TOTAL_S]! += sec;
   const oi = this.offIdx;
@@ -130,6 +131,10 @@ pp.account = function (this: Engine, line: number, kind: number): void {
     }
   }
   cs[S_TOTAL_S]! += total;
+  // the motion's place on the clock, for the segments it writes
+  this.t0 = this.clock;
+  this.clock += total;
+  this.t1 = this.clock;
   // first/last lines; the lists only change when the tool or the offset does
   const o = this.offsets[oi]!;
   o.last = line;

@@ -154,7 +154,11 @@ pp.arc = function (this: Engine, line: number, cw: boolean, mask: number): void 
     const step = (cw ? -sweep : sweep) / nChords;
     const cs = Math.cos(step), sn = Math.sin(step);
     let ux = Math.cos(a0), uy = Math.sin(a0);
+    // the chords share the arc's time evenly (account() set t0 and t1 to the whole arc's)
+    const ta = this.t0, te = this.t1, dt = (te - ta) / nChords;
     for (let k = 1; k <= nChords; k++) {
+      this.t0 = ta + dt * (k - 1);
+      this.t1 = k === nChords ? te : ta + dt * k;
       if (k === nChords) {
         this.seg(line, K_ARC, tgt);
       } else {

@@ -311,6 +311,7 @@ pp.machineLeg = function (this: Engine, line: number, mc: Float64Array, axes: nu
   if (o) {
     const dx = nx - pos[0]!, dy = ny - pos[1]!, dz = nz - pos[2]!;
     const len = Math.sqrt((dx === dx ? dx * dx : 0) + (dy === dy ? dy * dy : 0) + (dz === dz ? dz * dz : 0));
+    this.t0 = this.t1 = this.clock;
     if (len > 0) {
       this.machineLen += len;
       const t = (len / this.rapidRate) * 60;
@@ -320,6 +321,8 @@ pp.machineLeg = function (this: Engine, line: number, mc: Float64Array, axes: nu
       this.gS[S_TOTAL_S]! += total;
       this.tS[tb + S_RAPID_S]! += t;
       this.tS[tb + S_TOTAL_S]! += total;
+      this.clock += total;
+      this.t1 = this.clock;
     }
     if (this.offIdx >= 0) {
       const e = this.tgt;

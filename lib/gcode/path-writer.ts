@@ -9,6 +9,9 @@ import { ToolpathColumn } from "./toolpath";
 import { Engine } from "./state";
 import * as codes from "./codes";
 
+/** The arrays of a finished path (the time columns only with the option segmentTimes). */
+export type PathArrays = Pick<Toolpath, "positions" | "line" | "kind" | "tool" | "offset" | "time" | "startTime">;
+
 // imported constants copied into module constants (codes.ts says why)
 const { CHUNK_MAX, K_JUMP } = codes;
 
@@ -20,7 +23,7 @@ declare module "./state" {
     fullVertexChunk(): number;
     fullSegmentChunk(): number;
     flushSegments(): void;
-    takePath(): Pick<Toolpath, "positions" | "line" | "kind" | "tool" | "offset">;
+    takePath(): PathArrays;
   }
 }
 
@@ -74,6 +77,11 @@ pp.push = function (this: Engine, line: number, kind: number, e: Float64Array): 
   this.cKind[j] = kind;
   this.cTool[j] = this.toolIdx;
   this.cOff[j] = this.offIdx < 0 ? this.curOff() : this.offIdx;
+  if (this.wantTime) {
+    // a Jump takes no time: it sits at the start of the motion it leads to
+    this.cT0[j] = this.t0;
+    this.cT1[j] = kind === K_JUMP ? this.t0 : this.t1;
+  }
   this.cN = j + 1;
   this.tpN = i + 1;
   this.vertex(e[0]!, e[1]!, e[2]!);
@@ -110,6 +118,14 @@ pp.fullSegmentChunk = function (this: Engine): number {
     const o = new Uint8Array(cap);
     o.set(this.cOff);
     this.cOff = o;
+    if (this.wantTime) {
+      const t0 = new Float32Array(cap);
+      t0.set(this.cT0);
+      this.cT0 = t0;
+      const t1 = new Float32Array(cap);
+      t1.set(this.cT1);
+      this.cT1 = t1;
+    }
     return this.cN;
   }
   if (!this.colLine) {
@@ -118,6 +134,10 @@ pp.fullSegmentChunk = function (this: Engine): number {
     this.colKind = new ToolpathColumn(Uint8Array, lim);
     this.colTool = new ToolpathColumn(Uint16Array, lim);
     this.colOff = new ToolpathColumn(Uint8Array, lim);
+    if (this.wantTime) {
+      this.colT0 = new ToolpathColumn(Float32Array, lim);
+      this.colT1 = new ToolpathColumn(Float32Array, lim);
+    }
   }
   this.flushSegments();
   return 0;
@@ -129,15 +149,24 @@ pp.flushSegments = function (this: Engine): void {
   this.colKind!.append(this.cKind, j);
   this.colTool!.append(this.cTool, j);
   this.colOff!.append(this.cOff, j);
+  if (this.colT0) {
+    this.colT0.append(this.cT0, j);
+    this.colT1!.append(this.cT1, j);
+  }
   this.cN = 0;
 };
 
 /** The toolpath arrays at the end of the run, each exactly as long as its data. */
-pp.takePath = function (this: Engine): Pick<Toolpath, "positions" | "line" | "kind" | "tool" | "offset"> {
+pp.takePath = function (this: Engine): PathArrays {
   const n = this.tpN;
   if (n === 0) {
     // a lone start vertex is not a path: no segments, no vertices
-    return { positions: new Float32Array(0), line: new Uint32Array(0), kind: new Uint8Array(0), tool: new Uint16Array(0), offset: new Uint8Array(0) };
+    const empty: PathArrays = { positions: new Float32Array(0), line: new Uint32Array(0), kind: new Uint8Array(0), tool: new Uint16Array(0), offset: new Uint8Array(0) };
+    if (this.wantTime) {
+      empty.startTime = new Float32Array(0);
+      empty.time = new Float32Array(0);
+    }
+    return empty;
   }
   let positions: Float32Array<ArrayBuffer>;
   if (this.colPos) {
@@ -155,8 +184,19 @@ pp.takePath = function (this: Engine): Pick<Toolpath, "positions" | "line" | "ki
     const offset = this.colOff!.take();
     const tool = this.colTool!.take();
     const line = this.colLine.take();
-    return { positions, line, kind, tool, offset };
+    const out: PathArrays = { positions, line, kind, tool, offset };
+    if (this.colT0) {
+      out.startTime = this.colT0.take();
+      out.time = this.colT1!.take();
+      this.cT0 = this.cT1 = new Float32Array(0);
+    }
+    return out;
   }
   const j = this.cN;
-  return { positions, line: this.cLine.slice(0, j), kind: this.cKind.slice(0, j), tool: this.cTool.slice(0, j), offset: this.cOff.slice(0, j) };
+  const out: PathArrays = { positions, line: this.cLine.slice(0, j), kind: this.cKind.slice(0, j), tool: this.cTool.slice(0, j), offset: this.cOff.slice(0, j) };
+  if (this.wantTime) {
+    out.startTime = this.cT0.slice(0, j);
+    out.time = this.cT1.slice(0, j);
+  }
+  return out;
 };

@@ -89,6 +89,7 @@ export class Engine {
   tol = 0.01; // chord tolerance
   cap = 50; // findings listed per rule
   wantPath = true;
+  wantTime = false; // option segmentTimes: the toolpath's time columns
   defaultRapid = false;
   defaultAccel = false;
   assumptions: string[] = [];
@@ -244,6 +245,10 @@ export class Engine {
   machineCount = 0;
   machineLines: number[] = [];
   counts = { rapid: 0, feed: 0, arc: 0, cycles: 0, machine: 0 };
+  // the program's clock (the same additions as the total time), and the start and end of the motion being written
+  clock = 0;
+  t0 = 0;
+  t1 = 0;
   spinMin = Infinity;
   spinMax = -Infinity;
   stops = { programStops: 0, optionalStops: 0, lines: [] as number[] };
@@ -273,11 +278,15 @@ export class Engine {
   cKind: Uint8Array<ArrayBuffer>;
   cTool: Uint16Array<ArrayBuffer>;
   cOff: Uint8Array<ArrayBuffer>;
+  cT0: Float32Array<ArrayBuffer>; // segmentTimes only: start and end of each segment's motion
+  cT1: Float32Array<ArrayBuffer>;
   colPos: ToolpathColumn<Float32Array<ArrayBuffer>> | null = null;
   colLine: ToolpathColumn<Uint32Array<ArrayBuffer>> | null = null;
   colKind: ToolpathColumn<Uint8Array<ArrayBuffer>> | null = null;
   colTool: ToolpathColumn<Uint16Array<ArrayBuffer>> | null = null;
   colOff: ToolpathColumn<Uint8Array<ArrayBuffer>> | null = null;
+  colT0: ToolpathColumn<Float32Array<ArrayBuffer>> | null = null;
+  colT1: ToolpathColumn<Float32Array<ArrayBuffer>> | null = null;
   lvx = NaN; // the last vertex written
   lvy = NaN;
   lvz = NaN;
@@ -293,6 +302,7 @@ export class Engine {
     this.gGroup = this.common ? G_GROUP_COMMON : G_GROUP_STRICT;
     this.cap = opt.maxFindingsPerRule ?? 50;
     this.wantPath = opt.toolpath !== false;
+    this.wantTime = this.wantPath && opt.segmentTimes === true;
     this.blockLimit = 2_000_000 + (this.n >>> 1);
     this.tpLimit = 8_000_000 + (this.n >>> 3);
     const cap = this.wantPath ? Math.min(CHUNK_MAX, Math.max(CHUNK_MIN, this.n >>> 4)) : 0;
@@ -302,5 +312,7 @@ export class Engine {
     this.cKind = new Uint8Array(cap);
     this.cTool = new Uint16Array(cap);
     this.cOff = new Uint8Array(cap);
+    this.cT0 = new Float32Array(this.wantTime ? cap : 0);
+    this.cT1 = new Float32Array(this.wantTime ? cap : 0);
   }
 }

@@ -238,6 +238,7 @@ export function serializeToolpath(tp: Toolpath): JsonToolpath {
     kind: bytesToBase64(tp.kind),
     tool: bytesToBase64(bytesOf(tp.tool, 2)),
     offset: bytesToBase64(tp.offset),
+    ...(tp.time && tp.startTime && { time: bytesToBase64(bytesOf(tp.time, 4)), startTime: bytesToBase64(bytesOf(tp.startTime, 4)) }),
   };
 }
 
@@ -253,7 +254,13 @@ export function deserializeToolpath(j: JsonToolpath): Toolpath {
   if (line.length !== n || kind.length !== n || tool.length !== n || offset.length !== n || positions.length !== vertices * 3) {
     throw new Error("toolpath arrays do not match the segment count");
   }
-  return { segmentCount: n, positions, line, kind, tool, offset, chordTolerance: j.chordTolerance };
+  const tp: Toolpath = { segmentCount: n, positions, line, kind, tool, offset, chordTolerance: j.chordTolerance };
+  if (j.time !== undefined && j.startTime !== undefined) {
+    tp.time = typed(base64ToBytes(j.time), 4, (b, k) => new Float32Array(b, 0, k));
+    tp.startTime = typed(base64ToBytes(j.startTime), 4, (b, k) => new Float32Array(b, 0, k));
+    if (tp.time.length !== n || tp.startTime.length !== n) throw new Error("toolpath time columns do not match the segment count");
+  }
+  return tp;
 }
 
 /** Analysis -> JSON-safe object (for JSON.stringify, the database and `--json`). */

@@ -169,6 +169,11 @@ export interface AnalyzeOptions {
   maxFindingsPerRule?: number;
   /** Build the toolpath (default true). */
   toolpath?: boolean;
+  /**
+   * Add the time columns `Toolpath.time` and `Toolpath.startTime` (default false): where each segment's motion
+   * starts and ends on the time estimate's clock, for playback. Nothing else in the analysis changes.
+   */
+  segmentTimes?: boolean;
 }
 
 /** A point; each axis may be null when it is not known. */
@@ -359,6 +364,17 @@ export interface Toolpath {
   offset: Uint8Array;
   /** Arc flattening tolerance used (largest distance from a chord to its arc), program units. */
   chordTolerance: number;
+  /**
+   * With the option `segmentTimes`: per segment, seconds from the program's start to the end of its motion on the
+   * clock of `time.totalSeconds` (trapezoidal moves, tool changes, dwells). Non-decreasing; a Jump ends where it
+   * starts. Chords of one arc share the arc's time evenly.
+   */
+  time?: Float32Array;
+  /**
+   * With `segmentTimes`: per segment, seconds at the start of its motion. `startTime[i] - time[i - 1]` is the pause
+   * before segment i: a tool change, a dwell, or moves that are timed but not drawn.
+   */
+  startTime?: Float32Array;
 }
 
 /** Program stops. */
@@ -475,6 +491,9 @@ export interface JsonToolpath {
   kind: string;
   tool: string;
   offset: string;
+  /** Only when the toolpath has its time columns (option `segmentTimes`). */
+  time?: string;
+  startTime?: string;
 }
 
 /** Analysis in JSON-safe form (what `--json` prints and what the server stores). */

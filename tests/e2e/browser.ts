@@ -2,9 +2,11 @@
  * Shared pieces of the browser tests: Debian's chromium driven by playwright-core, pointed at the
  * app that `npm test` started (BASE_URL, default http://localhost:3100).
  */
-import { existsSync } from "node:fs";
-import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import type { Browser, BrowserContext, Page } from "playwright-core";
 import { afterAll, afterEach, beforeAll, beforeEach } from "vitest";
+import { launchChromium } from "./chromium";
+
+export { chromiumPath } from "./chromium";
 
 /**
  * Where the app under test listens. Vitest overwrites process.env.BASE_URL with Vite's base path ("/"),
@@ -35,29 +37,9 @@ export const DEMO_USERS: ReadonlyArray<{ email: string; role: Role }> = [
   { email: "operator@cyclegate.test", role: "operator" },
 ];
 
-/** The binary itself skips the /usr/bin/chromium wrapper script and its harmless shell warning. */
-export function chromiumPath(): string {
-  if (existsSync("/usr/lib/chromium/chromium")) return "/usr/lib/chromium/chromium";
-  if (existsSync("/usr/bin/chromium")) return "/usr/bin/chromium";
-  throw new Error("Debian's chromium is missing: apt-get install -y chromium (npm test installs it)");
-}
-
 /** Launches headless chromium with a fresh profile and no background network traffic. */
 export function launchBrowser(): Promise<Browser> {
-  return chromium.launch({
-    executablePath: chromiumPath(),
-    args: [
-      "--headless",
-      "--no-sandbox",
-      "--disable-gpu",
-      "--disable-quic",
-      "--no-first-run",
-      "--disable-background-networking",
-      "--disable-component-update",
-      "--disable-sync",
-      "--enable-unsafe-swiftshader",
-    ],
-  });
+  return launchChromium();
 }
 
 /** A context of its own, so cookies never carry over from one test to the next. */

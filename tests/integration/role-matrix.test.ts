@@ -25,6 +25,7 @@ import * as programRevisionsRoute from "@/app/api/programs/[id]/revisions/route"
 import * as pushRoute from "@/app/api/revisions/route";
 import * as revisionRoute from "@/app/api/revisions/[id]/route";
 import * as revisionFileRoute from "@/app/api/revisions/[id]/file/route";
+import * as revisionToolpathRoute from "@/app/api/revisions/[id]/toolpath/route";
 import * as submitRoute from "@/app/api/revisions/[id]/submit/route";
 import * as releaseRoute from "@/app/api/revisions/[id]/release/route";
 import * as rejectRoute from "@/app/api/revisions/[id]/reject/route";
@@ -164,6 +165,7 @@ const CASES: Case[] = [
   { name: "GET /api/revisions/[id]", expect: SIGNED_IN, run: (c) => http(revisionRoute.GET(jsonRequest("GET"), rev(c.revisionId))) },
   { name: "DELETE /api/revisions/[id]", expect: UPLOADER_OR_ADMIN, run: async (c) => http(revisionRoute.DELETE(jsonRequest("DELETE"), rev(await freshRevision(c, "draft")))) },
   { name: "GET /api/revisions/[id]/file", expect: SIGNED_IN, run: (c) => http(revisionFileRoute.GET(jsonRequest("GET"), rev(c.revisionId))) },
+  { name: "GET /api/revisions/[id]/toolpath", expect: SIGNED_IN, run: (c) => http(revisionToolpathRoute.GET(jsonRequest("GET"), rev(c.revisionId))) },
   { name: "POST /api/revisions/[id]/submit", expect: PROGRAMMER_ONLY, run: async (c) => http(submitRoute.POST(jsonRequest("POST", { comment: "" }), rev(await freshRevision(c, "draft")))) },
   {
     name: "POST /api/revisions/[id]/release",

@@ -4,7 +4,6 @@ import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
 import { BoundsList, OffsetTable, ToolTable, type StoredResult } from "@/components/vault/analysis-tables";
-import { BackplotSlot } from "@/components/vault/backplot-slot";
 import { CodePane } from "@/components/vault/code-pane";
 import { FindingsList } from "@/components/vault/findings-list";
 import { formatBytes, formatDuration, formatWhen, plural } from "@/components/vault/format";
@@ -14,6 +13,7 @@ import { RevisionWorkspace } from "@/components/vault/revision-workspace";
 import { AnalysisBadge, StatusBadge } from "@/components/vault/status-badge";
 import { TimeChart } from "@/components/vault/time-chart";
 import { WorkflowPanel } from "@/components/vault/workflow-panel";
+import { RevisionBackplot } from "@/components/viewer/revision-backplot";
 import { requirePagePermission } from "@/lib/auth/page-guard";
 import { can as roleCan } from "@/lib/auth/roles";
 import { programRevisions } from "@/lib/dal/programs";
@@ -185,7 +185,7 @@ export default async function RevisionPage({ params, searchParams }: Props) {
 
         <section aria-label="Code and 3D view" className="grid gap-4 lg:grid-cols-2" data-testid="revision-workspace">
           <CodePane className="h-[36rem]" />
-          <BackplotSlot revisionId={rev.id} units={a?.units ?? null} analysisState={a?.state ?? null} className="h-[36rem]" />
+          <RevisionBackplot revisionId={rev.id} className="h-[36rem]" />
         </section>
 
         {result && (
