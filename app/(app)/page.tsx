@@ -96,7 +96,7 @@ export default async function OverviewPage() {
       )}
       {runs && (
         <Panel title="Latest runs at the machines" action={{ href: "/runs", label: "The record of runs" }} testId="latest-runs">
-          {runs.runs.length === 0 ? <p className="text-sm text-ink-soft">No run is signed off yet.</p> : <RunTable runs={runs.runs} compact testId="latest-runs-table" />}
+          {runs.runs.length === 0 ? <p className="text-sm text-ink-soft">No run is signed off yet.</p> : <RunTable runs={runs.runs} view="overview" testId="latest-runs-table" />}
         </Panel>
       )}
 

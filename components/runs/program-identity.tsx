@@ -24,20 +24,21 @@ export function ProgramIdentity(p: ProgramIdentityProps) {
       <StepHeading n={1} id="step-1" title="The program on the control">
         Open it at the control and compare each of these.
       </StepHeading>
-      <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-5">
+      <dl className="grid grid-cols-2 gap-3 sm:grid-cols-6">
         {(
           [
-            ["Program number", p.programNumber, "identity-program"],
-            ["Revision", String(p.revisionNumber), "identity-revision"],
-            ["File name", p.fileName, "identity-file"],
-            ["Size", `${formatBytes(p.size)} (${formatInt(p.size)} bytes)`, "identity-size"],
-            ["Lines", formatInt(p.lineCount), "identity-lines"],
+            ["Program number", p.programNumber, null, "identity-program", "sm:col-span-1"],
+            ["Revision", String(p.revisionNumber), null, "identity-revision", "sm:col-span-1"],
+            ["File name", p.fileName, null, "identity-file", "col-span-2 sm:col-span-2"],
+            ["Size", `${formatInt(p.size)} bytes`, formatBytes(p.size), "identity-size", "sm:col-span-1"],
+            ["Lines", formatInt(p.lineCount), null, "identity-lines", "sm:col-span-1"],
           ] as const
-        ).map(([k, v, id]) => (
-          <div key={k} className="rounded-lg border border-rule bg-white p-3">
+        ).map(([k, v, note, id, span]) => (
+          <div key={k} className={`rounded-lg border border-rule bg-white p-3 ${span}`}>
             <dt className="text-xs uppercase tracking-wide text-ink-soft">{k}</dt>
-            <dd className="mt-1 text-lg font-semibold break-words" data-testid={id}>
+            <dd className="mt-1 text-lg font-semibold [overflow-wrap:anywhere]" data-testid={id}>
               {v}
+              {note && <span className="block text-xs font-normal text-ink-soft">{note}</span>}
             </dd>
           </div>
         ))}

@@ -129,7 +129,7 @@ export function RunChecklist(p: RunChecklistProps) {
           <span className="block text-lg font-semibold">The program on the control is {p.label}</span>
           <span className="block text-sm text-ink-soft">Program number, the opening lines and the size match what is shown above.</span>
         </CheckRow>
-        <FieldError name="identity" errors={errors} />
+        {errors?.identity && <FieldError name="identity" errors={errors} />}
       </section>
 
       <section aria-labelledby="step-2" className="space-y-4 rounded-xl border border-rule bg-panel p-5">
@@ -180,7 +180,7 @@ export function RunChecklist(p: RunChecklistProps) {
             <span className="mt-2 block font-medium">Set at the control and checked</span>
           </CheckRow>
         ))}
-        <FieldError name="offsets" errors={errors} />
+        {errors?.offsets && <FieldError name="offsets" errors={errors} />}
       </section>
 
       <section aria-labelledby="step-3" className="space-y-4 rounded-xl border border-rule bg-panel p-5">
@@ -237,7 +237,7 @@ export function RunChecklist(p: RunChecklistProps) {
             <span className="mt-2 block font-medium">Loaded with its length offset measured</span>
           </CheckRow>
         ))}
-        <FieldError name="tools" errors={errors} />
+        {errors?.tools && <FieldError name="tools" errors={errors} />}
       </section>
 
       {p.summary}
@@ -248,7 +248,7 @@ export function RunChecklist(p: RunChecklistProps) {
           <span className="block text-lg font-semibold">Dry run done</span>
           <span className="block text-sm text-ink-soft">This revision ran through once at this machine the shop&apos;s safe way, and nothing looked wrong.</span>
         </CheckRow>
-        <FieldError name="dryRun" errors={errors} />
+        {errors?.dryRun && <FieldError name="dryRun" errors={errors} />}
         {p.mayCheck ? (
           <div className="grid gap-4 sm:grid-cols-2">
             <TextField
@@ -268,7 +268,7 @@ export function RunChecklist(p: RunChecklistProps) {
             Operators and leads sign off runs. You can read this checklist; the boxes are theirs to tick.
           </p>
         )}
-        <FieldError name="sha256" errors={errors} />
+        {errors?.sha256 && <FieldError name="sha256" errors={errors} />}
         <div className="space-y-3 border-t border-rule pt-4">
           <p role="status" aria-live="polite" className="flex items-center gap-3 text-sm" data-testid="check-count">
             <span className="h-2 w-40 overflow-hidden rounded-full bg-paper" aria-hidden>

@@ -28,8 +28,8 @@ export function RunFilters({
         </select>
       </label>
       <label className="text-sm">
-        <span className="mb-1 block font-medium">Program number starts with</span>
-        <input name="program" defaultValue={v(query.program)} placeholder="O2207" className={field} />
+        <span className="mb-1 block font-medium">Program number</span>
+        <input name="program" defaultValue={v(query.program)} placeholder="O2207, or how it starts" className={field} />
       </label>
       <label className="text-sm">
         <span className="mb-1 block font-medium">Signed off by</span>

@@ -7,17 +7,20 @@ const td = "px-3 py-2 align-top";
 
 /**
  * Runs signed off at the machines, newest first: when, which revision of which program on which machine, who, how
- * many parts, the offsets and tools confirmed, the SHA-256 signed. `compact` leaves out the machine and the details.
+ * many parts, the offsets and tools confirmed, the SHA-256 signed. `view` "overview" leaves out the checks and the
+ * e-mails; "program" (a program's own page) names only the revision and leaves out the machine.
  */
-export function RunTable({ runs, compact = false, testId = "run-table" }: { runs: RunView[]; compact?: boolean; testId?: string }) {
+export function RunTable({ runs, view = "record", testId = "run-table" }: { runs: RunView[]; view?: "record" | "overview" | "program"; testId?: string }) {
+  const compact = view === "overview";
+  const inProgram = view === "program";
   return (
     <div className="overflow-x-auto rounded-lg border border-rule bg-panel">
       <table className="w-full text-left text-sm" data-testid={testId}>
         <thead className="border-b border-rule bg-paper text-xs uppercase tracking-wide text-ink-soft">
           <tr>
             <th className={th}>Signed off (UTC)</th>
-            <th className={th}>Program</th>
-            {!compact && <th className={th}>Machine</th>}
+            <th className={th}>{inProgram ? "Revision" : "Program"}</th>
+            {!inProgram && <th className={th}>Machine</th>}
             <th className={th}>By</th>
             <th className={th}>Parts</th>
             {!compact && <th className={th}>Checked</th>}
@@ -30,14 +33,14 @@ export function RunTable({ runs, compact = false, testId = "run-table" }: { runs
               <td className={`${td} whitespace-nowrap tabular-nums`}>{formatWhen(r.signedAt)}</td>
               <td className={td}>
                 <Link href={`/revisions/${r.revision.id}`} className="font-semibold text-brand hover:underline">
-                  {r.program.programNumber} rev {r.revision.number}
+                  {inProgram ? `Revision ${r.revision.number}` : `${r.program.programNumber} rev ${r.revision.number}`}
                 </Link>
                 <span className="block text-xs text-ink-soft">
-                  {r.program.title}
-                  {r.revision.status !== "released" && <> · now {r.revision.status}</>}
+                  {inProgram ? null : r.program.title}
+                  {r.revision.status !== "released" && <>{inProgram ? "" : " · "}now {r.revision.status}</>}
                 </span>
               </td>
-              {!compact && (
+              {!inProgram && (
                 <td className={td}>
                   <Link href={`/machines/${r.machine.id}`} className="hover:underline">
                     {r.machine.name}
@@ -46,7 +49,7 @@ export function RunTable({ runs, compact = false, testId = "run-table" }: { runs
               )}
               <td className={td}>
                 {r.operator.name}
-                {!compact && <span className="block text-xs text-ink-soft">{r.operator.email}</span>}
+                {view === "record" && <span className="block text-xs text-ink-soft">{r.operator.email}</span>}
               </td>
               <td className={`${td} tabular-nums`}>{r.quantity ?? "—"}</td>
               {!compact && (

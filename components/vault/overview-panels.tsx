@@ -59,25 +59,34 @@ export function ReleasedByMachine({ groups, runCheck = false }: { groups: { mach
             </Link>
           </h3>
           <ul className={runCheck ? "divide-y divide-rule text-sm" : "space-y-1 text-sm"}>
-            {g.programs.map((p) => (
-              <li key={p.programId} className={`flex flex-wrap items-baseline gap-x-2 ${runCheck ? "items-center gap-y-2 py-2" : ""}`} data-program={p.programNumber}>
-                <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
-                  {p.programNumber} rev {p.revisionNumber}
-                </Link>
-                <span className="text-ink-soft">{p.title}</span>
-                {runCheck ? (
+            {g.programs.map((p) =>
+              runCheck ? (
+                <li key={p.programId} className="flex items-center gap-3 py-2" data-program={p.programNumber}>
+                  <div className="min-w-0 flex-1">
+                    <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
+                      {p.programNumber} rev {p.revisionNumber}
+                    </Link>
+                    <span className="block text-ink-soft">{p.title}</span>
+                    <span className="block text-xs text-ink-soft tabular-nums">released {formatWhen(p.releasedAt)}</span>
+                  </div>
                   <Link
                     href={`/revisions/${p.revisionId}/run`}
-                    className="ml-auto inline-flex min-h-11 items-center rounded-md bg-brand px-4 font-semibold text-white hover:bg-brand-strong"
+                    className="inline-flex min-h-12 shrink-0 items-center rounded-md bg-brand px-4 font-semibold text-white hover:bg-brand-strong"
                     data-testid="check-before-cycle-start"
                   >
                     Check before cycle start
                   </Link>
-                ) : (
+                </li>
+              ) : (
+                <li key={p.programId} className="flex flex-wrap items-baseline gap-x-2" data-program={p.programNumber}>
+                  <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
+                    {p.programNumber} rev {p.revisionNumber}
+                  </Link>
+                  <span className="text-ink-soft">{p.title}</span>
                   <span className="ml-auto text-xs text-ink-soft tabular-nums">released {formatWhen(p.releasedAt)}</span>
-                )}
-              </li>
-            ))}
+                </li>
+              ),
+            )}
           </ul>
         </div>
       ))}

@@ -82,7 +82,7 @@ export function describeEvent(e: AuditRow): string {
     case "revision.delete-draft":
       return `deleted draft revision${num(d)}`;
     case "run.signed-off":
-      return `signed off a run of revision${num(d)} at the machine${typeof d.quantity === "number" ? ` (${d.quantity} parts planned)` : ""}`;
+      return `signed off a run of revision${num(d)}${typeof d.quantity === "number" ? ` (${d.quantity} parts)` : ""}`;
     default:
       return e.action;
   }

@@ -142,7 +142,7 @@ export default async function ProgramPage({ params }: Props) {
             {released ? "The operator signs off each run on the released revision's check before cycle start." : "A revision has to be released before it may run."}
           </EmptyState>
         ) : (
-          <RunTable runs={runs.runs} compact testId="program-runs" />
+          <RunTable runs={runs.runs} view="program" testId="program-runs" />
         )}
       </section>
 

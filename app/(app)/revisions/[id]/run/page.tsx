@@ -29,10 +29,10 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 }
 
 const NOT_RUNNABLE: Record<string, string> = {
-  draft: "is a draft: it has not been reviewed",
-  submitted: "is waiting for a lead's review",
-  rejected: "was rejected by a lead",
-  superseded: "is superseded by a newer released revision",
+  draft: "is a draft: it is not reviewed and may not run",
+  submitted: "is waiting for a lead's review: it may not run before it is released",
+  rejected: "was rejected by a lead: it may not run",
+  superseded: "is superseded by a newer revision: it may no longer run",
 };
 
 /** Why this revision may not be signed off now, or null when it may. */
@@ -116,12 +116,13 @@ export default async function RunCheckPage({ params, searchParams }: Props) {
         <section role="alert" aria-labelledby="refusal" className="space-y-3 rounded-xl border-4 border-bad bg-bad/10 p-5" data-testid="run-refusal">
           <h2 id="refusal" className="text-2xl font-bold text-bad">Do not run this revision</h2>
           <p className="text-lg">
-            {refused.text}
-            {supersededBy && (
+            {supersededBy ? (
               <>
-                {" "}It was superseded by revision {supersededBy.number}
-                {rev.supersededAt && <> on <span className="tabular-nums">{formatWhen(rev.supersededAt)}</span></>}.
+                {label} was superseded by revision {supersededBy.number}
+                {rev.supersededAt && <> on <span className="tabular-nums">{formatWhen(rev.supersededAt)}</span></>}: it may no longer run.
               </>
+            ) : (
+              refused.text
             )}
           </p>
           {released ? (
