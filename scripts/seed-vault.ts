@@ -20,9 +20,7 @@ import {
   programs,
   revisionAnalyses,
   revisionFindings,
-  revisionOffsets,
   revisions,
-  revisionTools,
   runs,
   signatures,
   users,
@@ -30,7 +28,7 @@ import {
 import { analyzeProgram } from "../lib/gcode/index";
 import { analyseRevision } from "../lib/jobs/analysis";
 import { countLines } from "../lib/program-file";
-import { inLoadOrder } from "../lib/run-checklist";
+import { offsetsAsRecorded, runChecksOf } from "../lib/run-record";
 
 const STORED = "demo-vault-stored";
 const WORKFLOW = "demo-vault-workflow";
@@ -179,28 +177,9 @@ async function applyRuns(tx: Tx): Promise<number> {
       .innerJoin(programs, eq(programs.id, revisions.programId))
       .where(and(eq(programs.programNumber, r.programNumber), eq(revisions.number, r.revision)));
     if (!operator || !rev || (rev.status !== "released" && rev.status !== "superseded")) continue;
-    const [analysis] = await tx
-      .select({ sequence: revisionAnalyses.toolSequence, d: sql<{ number: number; diameterOffsets: number[] }[] | null>`${revisionAnalyses.result}->'tools'` })
-      .from(revisionAnalyses)
-      .where(eq(revisionAnalyses.revisionId, rev.id));
-    const toolRows = await tx
-      .select({ number: revisionTools.toolNumber, lengthOffsets: revisionTools.lengthOffsets, firstLine: revisionTools.firstLine })
-      .from(revisionTools)
-      .where(eq(revisionTools.revisionId, rev.id));
-    const diameters = new Map((analysis?.d ?? []).map((t) => [t.number, t.diameterOffsets ?? []]));
-    const tools = inLoadOrder(toolRows, analysis?.sequence ?? []).map((t) => ({ number: t.number, lengthOffsets: t.lengthOffsets, diameterOffsets: diameters.get(t.number) ?? [] }));
-    const codes = await tx.select({ code: revisionOffsets.code }).from(revisionOffsets).where(eq(revisionOffsets.revisionId, rev.id)).orderBy(revisionOffsets.position);
-    const recorded = await tx
-      .select({ code: machineWorkOffsets.code, x: machineWorkOffsets.x, y: machineWorkOffsets.y, z: machineWorkOffsets.z, setAt: machineWorkOffsets.setAt, setBy: users.id, setByName: users.displayName })
-      .from(machineWorkOffsets)
-      .leftJoin(users, eq(users.id, machineWorkOffsets.setBy))
-      .where(eq(machineWorkOffsets.machineId, rev.machineId));
-    const offsets = codes.map(({ code }) => {
-      const v = recorded.find((o) => o.code === code);
-      return v
-        ? { code, x: v.x, y: v.y, z: v.z, setAt: v.setAt.toISOString(), setBy: v.setBy !== null ? { id: v.setBy, name: v.setByName! } : null }
-        : { code, x: null, y: null, z: null, setAt: null, setBy: null };
-    });
+    const checks = await runChecksOf(tx, rev.id, rev.machineId);
+    const offsets = offsetsAsRecorded(checks);
+    const tools = checks.tools;
     const at = new Date(Date.now() - r.daysAgo * DAY);
     const [run] = await tx
       .insert(runs)

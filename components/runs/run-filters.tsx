@@ -1,7 +1,5 @@
-import Link from "next/link";
+import { FilterActions, FilterInput, FilterSelect } from "@/components/ui/filter-fields";
 import type { RunListQuery } from "@/lib/vault-validation";
-
-const field = "w-full rounded-md border border-rule bg-white px-2 py-2 text-sm";
 
 /** The record's filters as a plain GET form, so a filtered record lives in the address and can be bookmarked. */
 export function RunFilters({
@@ -13,52 +11,15 @@ export function RunFilters({
   machines: { id: number; name: string }[];
   operators: { id: number; name: string }[];
 }) {
-  const v = (x: string | number | undefined) => (x === undefined ? "" : String(x));
   return (
     <form role="search" aria-label="Filter runs" method="get" action="/runs" className="grid gap-3 rounded-lg border border-rule bg-panel p-4 sm:grid-cols-2 lg:grid-cols-5">
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">Machine</span>
-        <select name="machine" defaultValue={v(query.machine)} className={field}>
-          <option value="">Any machine</option>
-          {machines.map((m) => (
-            <option key={m.id} value={m.id}>
-              {m.name}
-            </option>
-          ))}
-        </select>
-      </label>
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">Program number</span>
-        <input name="program" defaultValue={v(query.program)} placeholder="O2207, or how it starts" className={field} />
-      </label>
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">Signed off by</span>
-        <select name="operator" defaultValue={v(query.operator)} className={field}>
-          <option value="">Anyone</option>
-          {operators.map((o) => (
-            <option key={o.id} value={o.id}>
-              {o.name}
-            </option>
-          ))}
-        </select>
-      </label>
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">From (UTC day)</span>
-        <input name="from" type="date" defaultValue={v(query.from)} className={field} />
-      </label>
-      <label className="text-sm">
-        <span className="mb-1 block font-medium">To (UTC day)</span>
-        <input name="to" type="date" defaultValue={v(query.to)} className={field} />
-      </label>
+      <FilterSelect label="Machine" name="machine" value={query.machine} any="Any machine" options={machines.map((m) => ({ value: m.id, label: m.name }))} />
+      <FilterInput label="Program number" name="program" value={query.program} placeholder="O2207, or how it starts" />
+      <FilterSelect label="Signed off by" name="operator" value={query.operator} any="Anyone" options={operators.map((o) => ({ value: o.id, label: o.name }))} />
+      <FilterInput label="From (UTC day)" name="from" type="date" value={query.from} />
+      <FilterInput label="To (UTC day)" name="to" type="date" value={query.to} />
       {query.programId !== undefined && <input type="hidden" name="programId" value={query.programId} />}
-      <div className="flex items-end gap-2 sm:col-span-2 lg:col-span-5">
-        <button type="submit" className="min-h-10 rounded-md bg-brand px-4 py-2 text-sm font-semibold text-white hover:bg-brand-strong">
-          Apply filters
-        </button>
-        <Link href="/runs" className="min-h-10 rounded-md border border-rule px-4 py-2 text-sm">
-          Clear
-        </Link>
-      </div>
+      <FilterActions clearHref="/runs" className="sm:col-span-2 lg:col-span-5" />
     </form>
   );
 }

@@ -59,15 +59,19 @@ export function ReleasedByMachine({ groups, runCheck = false }: { groups: { mach
             </Link>
           </h3>
           <ul className={runCheck ? "divide-y divide-rule text-sm" : "space-y-1 text-sm"}>
-            {g.programs.map((p) =>
-              runCheck ? (
+            {g.programs.map((p) => {
+              const name = (
+                <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
+                  {p.programNumber} rev {p.revisionNumber}
+                </Link>
+              );
+              const released = <span className={`text-xs text-ink-soft tabular-nums ${runCheck ? "block" : "ml-auto"}`}>released {formatWhen(p.releasedAt)}</span>;
+              return runCheck ? (
                 <li key={p.programId} className="flex items-center gap-3 py-2" data-program={p.programNumber}>
                   <div className="min-w-0 flex-1">
-                    <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
-                      {p.programNumber} rev {p.revisionNumber}
-                    </Link>
+                    {name}
                     <span className="block text-ink-soft">{p.title}</span>
-                    <span className="block text-xs text-ink-soft tabular-nums">released {formatWhen(p.releasedAt)}</span>
+                    {released}
                   </div>
                   <Link
                     href={`/revisions/${p.revisionId}/run`}
@@ -79,14 +83,12 @@ export function ReleasedByMachine({ groups, runCheck = false }: { groups: { mach
                 </li>
               ) : (
                 <li key={p.programId} className="flex flex-wrap items-baseline gap-x-2" data-program={p.programNumber}>
-                  <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
-                    {p.programNumber} rev {p.revisionNumber}
-                  </Link>
+                  {name}
                   <span className="text-ink-soft">{p.title}</span>
-                  <span className="ml-auto text-xs text-ink-soft tabular-nums">released {formatWhen(p.releasedAt)}</span>
+                  {released}
                 </li>
-              ),
-            )}
+              );
+            })}
           </ul>
         </div>
       ))}

@@ -1,17 +1,13 @@
 import "server-only";
-import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
+import { and, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { db, type Db, type Tx } from "@/db";
 import {
   machines,
-  machineWorkOffsets,
   programFiles,
   programs,
   revisionAnalyses,
-  revisionOffsets,
   revisions,
-  revisionTools,
   runs,
-  users,
   type AnalysisState,
   type RevisionStatus,
 } from "@/db/schema";
@@ -21,25 +17,11 @@ import { requireOwnPassword } from "@/lib/auth/reauth";
 import { authorize, requestIp } from "@/lib/auth/session";
 import { likeEscape } from "@/lib/dal/sql";
 import { programHeader, type ProgramHeader } from "@/lib/program-file";
-import { checkGaps, gapMessages, hasGaps, inLoadOrder } from "@/lib/run-checklist";
+import { checkGaps, gapMessages, hasGaps } from "@/lib/run-checklist";
+import { offsetsAsRecorded, runChecksOf, type RunChecks, type RunOffsetValue, type RunTool } from "@/lib/run-record";
 import type { RunListQuery, RunSignOffInput } from "@/lib/vault-validation";
 
-/** A work offset as the run recorded it: the values recorded for the machine then, or nulls when none were. */
-export interface RunOffsetValue {
-  code: string;
-  x: number | null;
-  y: number | null;
-  z: number | null;
-  setAt: string | null;
-  setBy: { id: number; name: string } | null;
-}
-
-/** A tool the operator confirmed loaded, with the offsets the program uses with it. */
-export interface RunTool {
-  number: number;
-  lengthOffsets: number[];
-  diameterOffsets: number[];
-}
+export type { RunOffsetValue, RunTool };
 
 /** One run signed off at a machine. */
 export interface RunView {
@@ -175,7 +157,7 @@ export async function readRevisionHeader(id: number): Promise<ProgramHeader | nu
 }
 
 /** What the server needs to decide a sign-off, read (and with `lock`, held) in the sign-off's transaction. */
-interface SignOffPlan {
+interface SignOffPlan extends RunChecks {
   revisionId: number;
   number: number;
   status: RevisionStatus;
@@ -185,10 +167,6 @@ interface SignOffPlan {
   machineId: number;
   releasedRevisionId: number | null;
   analysisState: AnalysisState | null;
-  offsets: string[];
-  tools: RunTool[];
-  /** Values recorded for the machine, by code. */
-  recorded: Map<string, RunOffsetValue>;
 }
 
 /**
@@ -210,35 +188,8 @@ async function readPlan(tx: Tx | Db, revisionId: number, lock: boolean): Promise
     .where(eq(revisions.id, revisionId));
   const [rev] = lock ? await revisionQuery.for("share") : await revisionQuery;
   if (!program || !rev) throw new RequestError(404, "No such revision.");
-  const analysisQuery = tx
-    .select({ state: revisionAnalyses.state, sequence: revisionAnalyses.toolSequence, d: sql<{ number: number; diameterOffsets: number[] }[] | null>`${revisionAnalyses.result}->'tools'` })
-    .from(revisionAnalyses)
-    .where(eq(revisionAnalyses.revisionId, revisionId));
+  const analysisQuery = tx.select({ state: revisionAnalyses.state }).from(revisionAnalyses).where(eq(revisionAnalyses.revisionId, revisionId));
   const [analysis] = lock ? await analysisQuery.for("share") : await analysisQuery;
-  // One after another: inside a transaction they share one connection.
-  const offsetRows = await tx
-    .select({ code: revisionOffsets.code })
-    .from(revisionOffsets)
-    .where(eq(revisionOffsets.revisionId, revisionId))
-    .orderBy(asc(revisionOffsets.position));
-  const toolRows = await tx
-    .select({ number: revisionTools.toolNumber, lengthOffsets: revisionTools.lengthOffsets, firstLine: revisionTools.firstLine })
-    .from(revisionTools)
-    .where(eq(revisionTools.revisionId, revisionId));
-  const recordedRows = await tx
-    .select({
-      code: machineWorkOffsets.code,
-      x: machineWorkOffsets.x,
-      y: machineWorkOffsets.y,
-      z: machineWorkOffsets.z,
-      setAt: machineWorkOffsets.setAt,
-      setById: users.id,
-      setByName: users.displayName,
-    })
-    .from(machineWorkOffsets)
-    .leftJoin(users, eq(users.id, machineWorkOffsets.setBy))
-    .where(eq(machineWorkOffsets.machineId, program.machineId));
-  const diameters = new Map((analysis?.d ?? []).map((t) => [t.number, t.diameterOffsets ?? []]));
   return {
     revisionId,
     number: rev.number,
@@ -249,14 +200,7 @@ async function readPlan(tx: Tx | Db, revisionId: number, lock: boolean): Promise
     machineId: program.machineId,
     releasedRevisionId: program.releasedRevisionId,
     analysisState: analysis?.state ?? null,
-    offsets: offsetRows.map((o) => o.code),
-    tools: inLoadOrder(toolRows, analysis?.sequence ?? []).map((t) => ({ number: t.number, lengthOffsets: t.lengthOffsets, diameterOffsets: diameters.get(t.number) ?? [] })),
-    recorded: new Map(
-      recordedRows.map((r) => [
-        r.code,
-        { code: r.code, x: r.x, y: r.y, z: r.z, setAt: r.setAt.toISOString(), setBy: r.setById !== null ? { id: r.setById, name: r.setByName! } : null },
-      ]),
-    ),
+    ...(await runChecksOf(tx, revisionId, program.machineId)),
   };
 }
 
@@ -276,7 +220,7 @@ function checkSignOff(plan: SignOffPlan, input: RunSignOffInput): void {
     const message = `That is not the SHA-256 of ${label}; compare the program on the control again.`;
     throw new RequestError(422, message, { formErrors: [], fieldErrors: { sha256: [message] } });
   }
-  const gaps = checkGaps({ offsets: plan.offsets, tools: plan.tools.map((t) => t.number) }, input);
+  const gaps = checkGaps({ offsets: plan.offsetCodes, tools: plan.tools.map((t) => t.number) }, input);
   if (hasGaps(gaps)) {
     throw new RequestError(422, "Every check must be ticked before the run is signed off; nothing was signed.", {
       formErrors: [],
@@ -286,7 +230,7 @@ function checkSignOff(plan: SignOffPlan, input: RunSignOffInput): void {
   }
   for (const seen of input.shown ?? []) {
     const now = plan.recorded.get(seen.code)?.setAt ?? null;
-    if (plan.offsets.includes(seen.code) && now !== seen.setAt) {
+    if (plan.offsetCodes.includes(seen.code) && now !== seen.setAt) {
       const who = plan.recorded.get(seen.code)?.setBy?.name;
       throw new RequestError(
         409,
@@ -314,7 +258,7 @@ export async function signOffRun(revisionId: number, input: RunSignOffInput): Pr
   const runId = await db().transaction(async (tx) => {
     const plan = await readPlan(tx, revisionId, true);
     checkSignOff(plan, input);
-    const offsets: RunOffsetValue[] = plan.offsets.map((code) => plan.recorded.get(code) ?? { code, x: null, y: null, z: null, setAt: null, setBy: null });
+    const offsets = offsetsAsRecorded(plan);
     const [row] = await tx
       .insert(runs)
       .values({

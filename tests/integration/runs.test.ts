@@ -11,8 +11,8 @@ import * as submitRoute from "@/app/api/revisions/[id]/submit/route";
 import { signOffRunAction } from "@/app/(app)/runs/actions";
 import { env } from "@/lib/env";
 import { initialFormState } from "@/lib/form-state";
-import { actAs, formData, jsonRequest, params, TEST_PASSWORD } from "./helpers";
-import { ensureWorker, makeProgram, stopWorker, upload, waitForAnalysis } from "./vault-helpers";
+import { actAs, dbError, formData, jsonRequest, params, TEST_PASSWORD } from "./helpers";
+import { ensureWorker, makeProgram, ncProgram, stopWorker, upload, waitForAnalysis } from "./vault-helpers";
 
 beforeAll(async () => {
   await ensureWorker();
@@ -21,33 +21,9 @@ afterAll(async () => {
   await stopWorker();
 });
 
-/** Two tools (T1 then T2) under two work offsets (G54, then G55): a clean program but for the tag. */
-function twoSetupProgram(tag = randomUUID()) {
-  return [
-    "%",
-    `O1001 (RUN CHECK ${tag})`,
-    "(T1 D10 END MILL - H1)",
-    "(T2 D6 DRILL - H2)",
-    "G90 G94 G17 G40 G49 G80 G21",
-    "T1 M6 (D10 END MILL)",
-    "G54 G0 X0 Y0 S3000 M3",
-    "G43 H1 Z25",
-    "G0 Z2",
-    "G1 Z-1 F200",
-    "G1 X20 F600",
-    "G0 Z25",
-    "T2 M6 (D6 DRILL)",
-    "G55 G0 X5 Y5 S2000 M3",
-    "G43 H2 Z25",
-    "G0 Z2",
-    "G1 Z-3 F100",
-    "G0 Z25",
-    "M5",
-    "M30",
-    "%",
-    "",
-  ].join("\n");
-}
+/** Two tools (T1 then T2) under two work offsets (G54, then G55): the shared clean program with a second setup. */
+const twoSetupProgram = (tag = randomUUID()) =>
+  ncProgram(tag, ["G0 Z25", "T2 M6 (D6 DRILL)", "G55 G0 X5 Y5 S2000 M3", "G43 H2 Z25", "G0 Z2", "G1 Z-3 F100"].join("\n"));
 
 const post = (handler: typeof submitRoute.POST, id: number, body?: unknown) =>
   handler(
@@ -273,17 +249,9 @@ describe("signing off a run", () => {
     const rev = await revisionIn("released");
     await actAs("operator");
     expect((await post(signOffRoute.POST, rev.id, allChecks(rev.sha256))).status).toBe(201);
-    const refusal = async (q: Promise<unknown>) => {
-      try {
-        await q;
-      } catch (e) {
-        return (e as { cause?: { message?: string } }).cause?.message ?? (e as Error).message;
-      }
-      return null;
-    };
-    expect(await refusal(db().update(runs).set({ quantity: 99 }).where(eq(runs.revisionId, rev.id)))).toMatch(/append-only: UPDATE refused/);
-    expect(await refusal(db().delete(runs).where(eq(runs.revisionId, rev.id)))).toMatch(/append-only: DELETE refused/);
-    expect(await refusal(db().execute(sql`truncate runs`))).toMatch(/append-only: TRUNCATE refused/);
+    expect(await dbError(db().update(runs).set({ quantity: 99 }).where(eq(runs.revisionId, rev.id)))).toMatch(/append-only: UPDATE refused/);
+    expect(await dbError(db().delete(runs).where(eq(runs.revisionId, rev.id)))).toMatch(/append-only: DELETE refused/);
+    expect(await dbError(db().execute(sql`truncate runs`))).toMatch(/append-only: TRUNCATE refused/);
     const [row] = await db().select({ quantity: runs.quantity }).from(runs).where(eq(runs.revisionId, rev.id));
     expect(row!.quantity).toBe(12);
   });
