@@ -11,10 +11,11 @@ import {
   type AnalysisState,
   type RevisionStatus,
 } from "@/db/schema";
-import { recordEvent, recordRepeatedEvent } from "@/lib/audit";
+import { recordEvent } from "@/lib/audit";
 import { RequestError } from "@/lib/auth/errors";
 import { requireOwnPassword } from "@/lib/auth/reauth";
 import { authorize, requestIp } from "@/lib/auth/session";
+import { recordRevisionView } from "@/lib/dal/revisions";
 import { likeEscape } from "@/lib/dal/sql";
 import { programHeader, type ProgramHeader } from "@/lib/program-file";
 import { checkGaps, gapMessages, hasGaps } from "@/lib/run-checklist";
@@ -142,17 +143,7 @@ export async function readRevisionHeader(id: number): Promise<ProgramHeader | nu
     .innerJoin(programFiles, eq(programFiles.sha256, revisions.sha256))
     .where(eq(revisions.id, id));
   if (!row) return null;
-  const details = { programId: row.programId, number: row.number, sha256: row.sha256 };
-  await recordRepeatedEvent({
-    actor,
-    action: "revision.view",
-    objectType: "revision",
-    objectId: id,
-    details,
-    key: `revision.view:${actor.id}:${id}`,
-    summary: details,
-    ip: await requestIp(),
-  });
+  await recordRevisionView(actor, id, { programId: row.programId, number: row.number, sha256: row.sha256 });
   return programHeader(row.head, { complete: row.size <= HEAD_BYTES });
 }
 
