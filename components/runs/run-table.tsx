@@ -41,7 +41,7 @@ export function RunTable({ runs, view = "record", testId = "run-table" }: { runs
                 </span>
               </td>
               {!inProgram && (
-                <td className={td}>
+                <td className={`${td} whitespace-nowrap`}>
                   <Link href={`/machines/${r.machine.id}`} className="hover:underline">
                     {r.machine.name}
                   </Link>
