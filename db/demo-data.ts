@@ -307,10 +307,38 @@ export const DEMO_PROGRAMS: DemoProgram[] = [
   },
 ];
 
-/** Work offsets set at the demo machines (machine coordinates of part zero, the machine's units). */
-export const DEMO_WORK_OFFSETS: { machine: string; code: string; x: number; y: number; z: number }[] = [
-  { machine: "Bench mill 1", code: "G54", x: -262.415, y: -118.07, z: -196.33 },
-  { machine: "Bench mill 1", code: "G55", x: -152.38, y: -118.105, z: -196.41 },
-  { machine: "Vertical centre 2", code: "G54", x: -381.2, y: -203.455, z: -402.118 },
-  { machine: "Vertical centre 2", code: "G55", x: -561.04, y: -203.5, z: -402.12 },
+/**
+ * Work offsets set at the demo machines (machine coordinates of part zero, the machine's units), by the lead, this many
+ * days ago: the vises and the fixture plate stay where they are bolted.
+ */
+export const DEMO_WORK_OFFSETS: { machine: string; code: string; x: number; y: number; z: number; daysAgo: number }[] = [
+  { machine: "Bench mill 1", code: "G54", x: -262.415, y: -118.07, z: -196.33, daysAgo: 34 },
+  { machine: "Bench mill 1", code: "G55", x: -152.38, y: -118.105, z: -196.41, daysAgo: 34 },
+  { machine: "Vertical centre 2", code: "G54", x: -381.2, y: -203.455, z: -402.118, daysAgo: 33 },
+  { machine: "Vertical centre 2", code: "G55", x: -561.04, y: -203.5, z: -402.12, daysAgo: 33 },
+];
+
+/** A run signed off at the machine: which revision (released at the time), who, when, how many parts. */
+export interface DemoRun {
+  programNumber: string;
+  revision: number;
+  by: string;
+  /** Days (and fractions) before the seed. */
+  daysAgo: number;
+  quantity: number | null;
+}
+
+const KOFI = "operator@cyclegate.test";
+
+/** Past runs, oldest first; each after its revision's release (and, for O1184 revision 1, before its supersession). */
+export const DEMO_RUNS: DemoRun[] = [
+  { programNumber: "O1184", revision: 1, by: KOFI, daysAgo: 27.3, quantity: 12 },
+  { programNumber: "O1184", revision: 1, by: KOFI, daysAgo: 20.4, quantity: 12 },
+  // The two-vise bracket on the hand-changed bench mill: two parts per cycle, the batch of 40 in two runs.
+  { programNumber: "O2207", revision: 1, by: KOFI, daysAgo: 10.7, quantity: 20 },
+  { programNumber: "O1184", revision: 2, by: KOFI, daysAgo: 8.3, quantity: 15 },
+  // The lead runs the first fixture plate himself, the operator the rest.
+  { programNumber: "O3310", revision: 1, by: TOMAS, daysAgo: 5.2, quantity: 1 },
+  { programNumber: "O3310", revision: 1, by: KOFI, daysAgo: 4.3, quantity: 3 },
+  { programNumber: "O2207", revision: 1, by: KOFI, daysAgo: 2.6, quantity: 20 },
 ];

@@ -488,3 +488,54 @@ export const machineWorkOffsets = pgTable(
   },
   (t) => [primaryKey({ columns: [t.machineId, t.code] })],
 );
+
+/**
+ * Runs signed off at the machine: before cycle start an operator (or a lead) confirmed the program on the control is
+ * the released revision, that every work offset it calls is set and every tool loaded with its length offset measured,
+ * and that a dry run was done, then signed with their password. Append-only: a trigger refuses UPDATE and DELETE.
+ */
+export const runs = pgTable(
+  "runs",
+  {
+    id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
+    revisionId: integer("revision_id")
+      .notNull()
+      .references(() => revisions.id, { onDelete: "restrict" }),
+    programId: integer("program_id")
+      .notNull()
+      .references(() => programs.id, { onDelete: "restrict" }),
+    /** The machine the program belonged to when it was signed off. */
+    machineId: integer("machine_id")
+      .notNull()
+      .references(() => machines.id, { onDelete: "restrict" }),
+    /** The SHA-256 of the bytes signed off (the revision's). */
+    sha256: char("sha256", { length: 64 }).notNull(),
+    operatorId: integer("operator_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    /** The operator's name and e-mail as they were at the time. */
+    operatorName: varchar("operator_name", { length: 100 }).notNull(),
+    operatorEmail: varchar("operator_email", { length: 254 }).notNull(),
+    /** Work offsets confirmed, with the values recorded for the machine as shown: [{ code, x, y, z, setAt, setBy }]. */
+    offsets: jsonb("offsets").notNull(),
+    /** Tools confirmed loaded, in load order: [{ number, lengthOffsets, diameterOffsets }]. */
+    tools: jsonb("tools").notNull(),
+    /** The program on the control was compared with this revision (number, first lines, size). */
+    identityChecked: boolean("identity_checked").notNull(),
+    dryRun: boolean("dry_run").notNull(),
+    /** Parts planned for this run, when the operator gave it. */
+    quantity: integer("quantity"),
+    signedAt: timestamp("signed_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("runs_signed_at_idx").on(t.signedAt),
+    index("runs_revision_idx").on(t.revisionId),
+    index("runs_program_idx").on(t.programId, t.signedAt),
+    index("runs_machine_idx").on(t.machineId, t.signedAt),
+    index("runs_operator_idx").on(t.operatorId, t.signedAt),
+    check("runs_checked", sql`${t.identityChecked} and ${t.dryRun}`),
+    check("runs_quantity", sql`${t.quantity} is null or ${t.quantity} between 1 and 100000`),
+  ],
+);
+
+export type RunRow = typeof runs.$inferSelect;

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { analyzeProgram } from "./gcode";
-import { attachmentDisposition, cleanFileName, countLines } from "./program-file";
+import { attachmentDisposition, cleanFileName, countLines, programHeader } from "./program-file";
 
 describe("countLines", () => {
   it("counts like the engine for every line ending", () => {
@@ -31,5 +31,39 @@ describe("attachmentDisposition (RFC 6266 with the RFC 8187 UTF-8 form)", () => 
     expect(attachmentDisposition("O1001.nc")).toBe(`attachment; filename="O1001.nc"; filename*=UTF-8''O1001.nc`);
     expect(attachmentDisposition('a "b" ü.nc')).toBe(`attachment; filename="a _b_ _.nc"; filename*=UTF-8''a%20%22b%22%20%C3%BC.nc`);
     expect(attachmentDisposition("it's (1).nc")).toBe(`attachment; filename="it's (1).nc"; filename*=UTF-8''it%27s%20%281%29.nc`);
+  });
+});
+
+describe("programHeader", () => {
+  const enc = (s: string) => new TextEncoder().encode(s);
+
+  it("keeps the opening lines up to the first line of code, with their line numbers", () => {
+    const h = programHeader(enc("%\r\nO2207 (SENSOR BRACKET)\r\n(VISE 1 = G54)\r\n\r\n; posted today\r\nN10 (FACE)\r\nN20 G90 G21\r\n(LATER)\r\n"));
+    expect(h.lines).toEqual([
+      { line: 1, text: "%" },
+      { line: 2, text: "O2207 (SENSOR BRACKET)" },
+      { line: 3, text: "(VISE 1 = G54)" },
+      { line: 4, text: "" },
+      { line: 5, text: "; posted today" },
+      { line: 6, text: "N10 (FACE)" },
+    ]);
+    expect(h.truncated).toBe(false);
+  });
+
+  it("stops at code on the number line, drops a byte order mark and control characters", () => {
+    expect(programHeader(enc("\ufeff(A)\u0007\nO1 G0 X0\n(B)\n")).lines).toEqual([{ line: 1, text: "(A)" }]);
+    expect(programHeader(enc("G90\n(A)\n")).lines).toEqual([]);
+  });
+
+  it("says when more opening lines follow than it shows, or the head ended inside them", () => {
+    const many = Array.from({ length: 30 }, (_, i) => `(LINE ${i})`).join("\n") + "\nG0 X0\n";
+    const h = programHeader(enc(many), { maxLines: 5 });
+    expect(h.lines).toHaveLength(5);
+    expect(h.truncated).toBe(true);
+    const cut = programHeader(enc("(ONE)\n(TWO)\n(THR"), { complete: false });
+    expect(cut.lines.map((l) => l.text)).toEqual(["(ONE)", "(TWO)"]);
+    expect(cut.truncated).toBe(true);
+    const long = programHeader(enc(`(${"X".repeat(300)})\nG0\n`), { maxChars: 20 });
+    expect(long.lines[0]!.text).toHaveLength(20);
   });
 });

@@ -44,3 +44,47 @@ export function attachmentDisposition(name: string): string {
   const encoded = encodeURIComponent(name).replace(/['()*]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`);
   return `attachment; filename="${ascii}"; filename*=UTF-8''${encoded}`;
 }
+
+/** A comment-only line: "(…)", "; …", a block number with only a comment, or blank. */
+const COMMENT_LINE = /^(?:N\d+\s*)?(?:\(.*\)\s*|;.*)?$/i;
+/** The program number line, with nothing after the number but a comment: "O1001", ":1001 (BRACKET)". */
+const NUMBER_LINE = /^[O:]\s*\d+\s*(?:\(.*\)\s*|;.*)?$/i;
+const DISPLAY_CONTROL = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u200b-\u200f\u2028-\u202e\u2060-\u2069\ufeff]/g;
+
+export interface ProgramHeader {
+  /** The program's opening lines with their physical line numbers: "%", the number line, comment lines. */
+  lines: { line: number; text: string }[];
+  /** More opening lines follow than are shown (or the head read ended inside them). */
+  truncated: boolean;
+}
+
+/**
+ * The opening lines of a program as a control shows them when it opens the file: everything before the first line
+ * that holds code but the "%" marker, the program number line and comment lines. `head` is the start of the file
+ * (it may end mid-line: `complete` false); at most `maxLines` lines of at most `maxChars` characters each.
+ */
+export function programHeader(head: Uint8Array, { complete = true, maxLines = 16, maxChars = 160 } = {}): ProgramHeader {
+  let text = new TextDecoder("utf-8").decode(head);
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+  const raw = text.split(/\r\n|\r|\n/);
+  // The last piece of a head cut short is a partial line.
+  const cut = !complete && raw.length > 0;
+  if (cut) raw.pop();
+  const lines: ProgramHeader["lines"] = [];
+  let truncated = cut;
+  for (let i = 0; i < raw.length; i++) {
+    const shown = raw[i]!.replace(DISPLAY_CONTROL, "").trimEnd();
+    const t = shown.trim();
+    if (!(t === "%" || COMMENT_LINE.test(t) || NUMBER_LINE.test(t))) {
+      truncated = false;
+      break;
+    }
+    if (lines.length === maxLines) {
+      truncated = true;
+      break;
+    }
+    lines.push({ line: i + 1, text: shown.length > maxChars ? `${shown.slice(0, maxChars - 1)}…` : shown });
+  }
+  while (lines.length > 0 && lines[lines.length - 1]!.text.trim() === "") lines.pop();
+  return { lines, truncated };
+}

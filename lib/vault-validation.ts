@@ -2,7 +2,7 @@ import { z } from "zod";
 import { REVISION_STATUSES } from "@/db/schema";
 import { RULE_IDS, type RuleId } from "@/lib/gcode/types";
 import { workOffsetValuesSchema } from "@/lib/machine-profile";
-import { decimalNumber, multiLineText, positiveId, positiveIdFromText, singleLineText } from "@/lib/validation";
+import { calendarDate, decimalNumber, multiLineText, positiveId, positiveIdFromText, singleLineText } from "@/lib/validation";
 
 /** One line of plain text (the shared block: no control characters, line breaks or bidi marks). */
 export const singleLine = (label: string, max: number, min = 1) =>
@@ -139,3 +139,58 @@ export const outboxListSchema = z.object({
 
 /** GET /api/revisions/{a}/compare/{b}: unchanged lines shown around each change. */
 export const compareQuerySchema = z.object({ context: z.preprocess(blank, wholeNumber(0, 50).optional()) });
+
+/** A SHA-256 as 64 hex digits (any case in, lower case out). */
+const sha256Hex = z
+  .string({ error: "Give the SHA-256 you compared." })
+  .trim()
+  .toLowerCase()
+  .regex(/^[0-9a-f]{64}$/, "Give the SHA-256 you compared: 64 hex digits.");
+
+export const RUN_QUANTITY_MAX = 100_000;
+
+/**
+ * POST /api/revisions/{id}/runs and the run page's form: the sign-off before cycle start. Boxes left out count as not
+ * ticked, so the data layer can name every missing one (422) rather than zod reporting a missing field.
+ */
+export const runSignOffSchema = z.object({
+  password: z.string({ error: "Enter your password." }).min(1, "Enter your password.").max(200),
+  /** The SHA-256 the operator compared: it must be the revision's. */
+  sha256: sha256Hex,
+  /** The program on the control is this revision (number, first lines, size compared). */
+  identity: z.boolean({ error: "Tick it or leave it out." }).default(false),
+  /** Work offsets set at the control and checked. */
+  offsets: z.array(workOffsetCode).max(300).default([]),
+  /** Tools loaded with their length offsets measured. */
+  tools: z.array(wholeNumber(0, 99_999)).max(1000).default([]),
+  dryRun: z.boolean({ error: "Tick it or leave it out." }).default(false),
+  /** Parts planned for this run (optional). */
+  quantity: z.preprocess(blank, wholeNumber(1, RUN_QUANTITY_MAX).nullable().default(null)),
+  /**
+   * When each work offset value shown to the operator was recorded (null: not recorded). A value recorded again since
+   * the page was loaded is refused (409): the operator checks it again. Optional for API callers.
+   */
+  shown: z
+    .array(z.object({ code: workOffsetCode, setAt: z.iso.datetime({ error: "An ISO time." }).nullable() }))
+    .max(300)
+    .optional(),
+});
+export type RunSignOffInput = z.infer<typeof runSignOffSchema>;
+
+export const RUN_PAGE_SIZE = 50;
+
+/** GET /api/runs and the /runs page: every filter optional, blank means absent; days are whole UTC days. */
+export const runListSchema = z
+  .object({
+    machine: z.preprocess(blank, id("a machine").optional()),
+    /** Program number, prefix, any case. */
+    program: z.preprocess(blank, singleLine("a program number", 32).optional()),
+    programId: z.preprocess(blank, id("a program").optional()),
+    operator: z.preprocess(blank, id("an operator").optional()),
+    from: z.preprocess(blank, calendarDate().optional()),
+    to: z.preprocess(blank, calendarDate().optional()),
+    page: z.preprocess(blank, wholeNumber(1, 100_000).default(1)),
+    pageSize: z.preprocess(blank, wholeNumber(1, 100).default(RUN_PAGE_SIZE)),
+  })
+  .refine((q) => !q.from || !q.to || q.from <= q.to, { path: ["to"], message: "The last day comes before the first." });
+export type RunListQuery = z.infer<typeof runListSchema>;

@@ -9,7 +9,7 @@ import { readFileSync } from "node:fs";
 import path from "node:path";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db, Tx } from "../db/client";
-import { DEMO_PARTS, DEMO_PROGRAMS, DEMO_SHOP, DEMO_WORK_OFFSETS } from "../db/demo-data";
+import { DEMO_PARTS, DEMO_PROGRAMS, DEMO_RUNS, DEMO_SHOP, DEMO_WORK_OFFSETS } from "../db/demo-data";
 import {
   appState,
   auditEvents,
@@ -21,15 +21,18 @@ import {
   revisionAnalyses,
   revisionFindings,
   revisions,
+  runs,
   signatures,
   users,
 } from "../db/schema";
 import { analyzeProgram } from "../lib/gcode/index";
 import { analyseRevision } from "../lib/jobs/analysis";
 import { countLines } from "../lib/program-file";
+import { offsetsAsRecorded, runChecksOf } from "../lib/run-record";
 
 const STORED = "demo-vault-stored";
 const WORKFLOW = "demo-vault-workflow";
+const RUNS = "demo-vault-runs";
 const LOCK = 727002;
 const DAY = 86_400_000;
 
@@ -122,7 +125,7 @@ export async function seedVault(db: Db): Promise<string> {
       if (!mId) continue;
       await tx
         .insert(machineWorkOffsets)
-        .values({ machineId: mId, code: o.code, x: o.x, y: o.y, z: o.z, setBy: lead?.id ?? null })
+        .values({ machineId: mId, code: o.code, x: o.x, y: o.y, z: o.z, setBy: lead?.id ?? null, setAt: new Date(Date.now() - o.daysAgo * DAY) })
         .onConflictDoNothing();
     }
     await tx.insert(appState).values({ key: STORED, value: { shop: DEMO_SHOP, at: new Date().toISOString() } });
@@ -147,7 +150,77 @@ export async function seedVault(db: Db): Promise<string> {
     await tx.insert(appState).values({ key: WORKFLOW, value: { at: new Date().toISOString() } });
     return true;
   });
-  return stored || walked ? `demo programs seeded (${pending.length} analysed)` : "demo programs already present";
+  // Past runs at the machines, once (also into a database seeded before runs were recorded).
+  const ran = await db.transaction(async (tx) => {
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK})`);
+    if (!(await marker(tx, WORKFLOW)) || (await marker(tx, RUNS))) return 0;
+    const n = await applyRuns(tx);
+    await tx.insert(appState).values({ key: RUNS, value: { runs: n, at: new Date().toISOString() } });
+    return n;
+  });
+  return stored || walked || ran > 0 ? `demo programs seeded (${pending.length} analysed, ${ran} past runs)` : "demo programs already present";
+}
+
+/**
+ * The demo's past runs, as a sign-off at the machine writes them: the offsets the revision calls with the values
+ * recorded for the machine, the tools in load order, the SHA-256, the audit event. A revision that is not where the
+ * demo left it (renamed program, another revision released) is left out.
+ */
+async function applyRuns(tx: Tx): Promise<number> {
+  const people = await byEmail(tx);
+  let n = 0;
+  for (const r of DEMO_RUNS) {
+    const operator = people.get(r.by);
+    const [rev] = await tx
+      .select({ id: revisions.id, programId: programs.id, machineId: programs.machineId, status: revisions.status, sha256: revisions.sha256 })
+      .from(revisions)
+      .innerJoin(programs, eq(programs.id, revisions.programId))
+      .where(and(eq(programs.programNumber, r.programNumber), eq(revisions.number, r.revision)));
+    if (!operator || !rev || (rev.status !== "released" && rev.status !== "superseded")) continue;
+    const checks = await runChecksOf(tx, rev.id, rev.machineId);
+    const offsets = offsetsAsRecorded(checks);
+    const tools = checks.tools;
+    const at = new Date(Date.now() - r.daysAgo * DAY);
+    const [run] = await tx
+      .insert(runs)
+      .values({
+        revisionId: rev.id,
+        programId: rev.programId,
+        machineId: rev.machineId,
+        sha256: rev.sha256,
+        operatorId: operator.id,
+        operatorName: operator.name,
+        operatorEmail: operator.email,
+        offsets,
+        tools,
+        identityChecked: true,
+        dryRun: true,
+        quantity: r.quantity,
+        signedAt: at,
+      })
+      .returning({ id: runs.id });
+    await tx.insert(auditEvents).values({
+      actorId: operator.id,
+      actorEmail: operator.email,
+      action: "run.signed-off",
+      objectType: "revision",
+      objectId: String(rev.id),
+      at,
+      details: {
+        runId: run!.id,
+        programId: rev.programId,
+        number: r.revision,
+        machineId: rev.machineId,
+        sha256: rev.sha256,
+        offsets: offsets.map((o) => o.code),
+        tools: tools.map((t) => t.number),
+        quantity: r.quantity,
+        demo: true,
+      },
+    });
+    n++;
+  }
+  return n;
 }
 
 /** Walks each demo revision to its final state, as the workflow would (signatures, supersession, audit). */

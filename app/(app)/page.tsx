@@ -1,23 +1,26 @@
 import Link from "next/link";
 import { CheckCaution } from "@/components/ui/check-caution";
+import { RunTable } from "@/components/runs/run-table";
 import { Panel, ReleasedByMachine, RevisionRows } from "@/components/vault/overview-panels";
 import { requirePageUser } from "@/lib/auth/page-guard";
 import { can, ROLE_LABELS } from "@/lib/auth/roles";
 import { listMachines } from "@/lib/dal/machines";
 import { listOutbox } from "@/lib/dal/outbox";
 import { countRevisions, listMyOpenRevisions, listReleasedByMachine, listRevisionsAwaitingReview } from "@/lib/dal/pages-overview";
+import { listRuns } from "@/lib/dal/runs";
 
 /** What each role needs first: a programmer their open work, a lead the review queue, an operator what may run. */
 export default async function OverviewPage() {
   const user = await requirePageUser();
   const role = user.role;
-  const [mine, waiting, released, counts, outbox, machines] = await Promise.all([
+  const [mine, waiting, released, counts, outbox, machines, runs] = await Promise.all([
     role === "programmer" ? listMyOpenRevisions() : null,
     role === "lead" || role === "admin" || role === "programmer" ? listRevisionsAwaitingReview() : null,
     role === "operator" || role === "admin" || role === "lead" ? listReleasedByMachine() : null,
     role === "admin" ? countRevisions() : null,
     can(role, "readOutbox") ? listOutbox({ page: 1 }) : null,
     listMachines(),
+    role === "lead" || role === "admin" ? listRuns({ page: 1, pageSize: 8 }) : null,
   ]);
   const ownWaiting = waiting?.filter((r) => r.uploadedBy.id === user.id) ?? [];
   return (
@@ -88,7 +91,12 @@ export default async function OverviewPage() {
       )}
       {released && (
         <Panel title="Released programs by machine" action={{ href: "/programs?status=released", label: "As a list" }} testId="released-by-machine">
-          <ReleasedByMachine groups={released} />
+          <ReleasedByMachine groups={released} runCheck={can(role, "signOffRuns")} />
+        </Panel>
+      )}
+      {runs && (
+        <Panel title="Latest runs at the machines" action={{ href: "/runs", label: "The record of runs" }} testId="latest-runs">
+          {runs.runs.length === 0 ? <p className="text-sm text-ink-soft">No run is signed off yet.</p> : <RunTable runs={runs.runs} view="overview" testId="latest-runs-table" />}
         </Panel>
       )}
 

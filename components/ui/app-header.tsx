@@ -10,6 +10,7 @@ export function AppHeader({ user }: { user: { name: string; role: Role } }) {
     { href: "/", label: "Overview", show: true },
     { href: "/programs", label: "Programs", show: can(user.role, "readPrograms") },
     { href: "/machines", label: "Machines", show: can(user.role, "readMachines") },
+    { href: "/runs", label: "Runs", show: can(user.role, "readRuns") },
     { href: "/admin/users", label: "Users", show: can(user.role, "manageUsers") },
     { href: "/audit", label: "Audit record", show: can(user.role, "readAudit") },
     { href: "/admin/outbox", label: "Mail outbox", show: can(user.role, "readOutbox") },

@@ -43,8 +43,11 @@ export function RevisionRows({ revisions, empty, show = "uploaded" }: { revision
   );
 }
 
-/** For each machine, the released revision of each of its programs. */
-export function ReleasedByMachine({ groups }: { groups: { machine: { id: number; name: string }; programs: ReleasedProgram[] }[] }) {
+/**
+ * For each machine, the released revision of each of its programs; with `runCheck`, each has a button to its check
+ * before cycle start (for the people who sign off runs).
+ */
+export function ReleasedByMachine({ groups, runCheck = false }: { groups: { machine: { id: number; name: string }; programs: ReleasedProgram[] }[]; runCheck?: boolean }) {
   if (groups.length === 0) return <p className="text-sm text-ink-soft">Nothing is released yet: no program may run.</p>;
   return (
     <div className="grid gap-4 md:grid-cols-2">
@@ -55,16 +58,37 @@ export function ReleasedByMachine({ groups }: { groups: { machine: { id: number;
               {g.machine.name}
             </Link>
           </h3>
-          <ul className="space-y-1 text-sm">
-            {g.programs.map((p) => (
-              <li key={p.programId} className="flex flex-wrap items-baseline gap-x-2">
+          <ul className={runCheck ? "divide-y divide-rule text-sm" : "space-y-1 text-sm"}>
+            {g.programs.map((p) => {
+              const name = (
                 <Link href={`/revisions/${p.revisionId}`} className="font-semibold text-ok hover:underline">
                   {p.programNumber} rev {p.revisionNumber}
                 </Link>
-                <span className="text-ink-soft">{p.title}</span>
-                <span className="ml-auto text-xs text-ink-soft tabular-nums">released {formatWhen(p.releasedAt)}</span>
-              </li>
-            ))}
+              );
+              const released = <span className={`text-xs text-ink-soft tabular-nums ${runCheck ? "block" : "ml-auto"}`}>released {formatWhen(p.releasedAt)}</span>;
+              return runCheck ? (
+                <li key={p.programId} className="flex items-center gap-3 py-2" data-program={p.programNumber}>
+                  <div className="min-w-0 flex-1">
+                    {name}
+                    <span className="block text-ink-soft">{p.title}</span>
+                    {released}
+                  </div>
+                  <Link
+                    href={`/revisions/${p.revisionId}/run`}
+                    className="inline-flex min-h-12 shrink-0 items-center rounded-md bg-brand px-4 font-semibold text-white hover:bg-brand-strong"
+                    data-testid="check-before-cycle-start"
+                  >
+                    Check before cycle start
+                  </Link>
+                </li>
+              ) : (
+                <li key={p.programId} className="flex flex-wrap items-baseline gap-x-2" data-program={p.programNumber}>
+                  {name}
+                  <span className="text-ink-soft">{p.title}</span>
+                  {released}
+                </li>
+              );
+            })}
           </ul>
         </div>
       ))}

@@ -81,6 +81,8 @@ export function describeEvent(e: AuditRow): string {
       return `looked at the code of revision${num(d)}${typeof d.repeated === "number" ? ` (and ${d.repeated} more times)` : ""}`;
     case "revision.delete-draft":
       return `deleted draft revision${num(d)}`;
+    case "run.signed-off":
+      return `signed off a run of revision${num(d)}${typeof d.quantity === "number" ? ` (${d.quantity} parts)` : ""}`;
     default:
       return e.action;
   }

@@ -27,6 +27,11 @@ export function RevisionList({ revisions, releasedId }: { revisions: RevisionSum
                 {r.fileName} · {formatBytes(r.size)} · {r.lineCount.toLocaleString("en")} lines
               </span>
               <span className="ml-auto flex gap-2 text-sm">
+                {released && (
+                  <Link href={`/revisions/${r.id}/run`} className="rounded-md bg-ok px-3 py-1.5 font-semibold text-white hover:opacity-90">
+                    Check before cycle start
+                  </Link>
+                )}
                 <a href={`/api/revisions/${r.id}/file`} download className="rounded-md border border-rule px-3 py-1.5 hover:bg-paper">
                   Download
                 </a>

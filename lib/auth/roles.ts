@@ -28,6 +28,14 @@ export const PERMISSIONS = {
   /** Work offset values set at the machines. */
   readWorkOffsets: ["admin", "lead", "programmer", "operator"],
   setWorkOffsets: ["admin", "lead", "operator"],
+  /** The record of runs signed off at the machines. */
+  readRuns: ["admin", "lead", "programmer", "operator"],
+  /**
+   * Sign off a released revision at the machine before cycle start (password again). Operators, and leads, who often
+   * run the first part of a new job themselves; not programmers (the one who wrote it does not also pass it at the
+   * machine) and not admins (they keep the system, not the machines).
+   */
+  signOffRuns: ["operator", "lead"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

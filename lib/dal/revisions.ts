@@ -327,7 +327,7 @@ export async function readRevisionFile(
     ip: await requestIp(),
   };
   if (purpose === "view") {
-    await recordRepeatedEvent({ ...event, action: "revision.view", key: `revision.view:${actor.id}:${id}`, summary: event.details });
+    await recordRevisionView(actor, id, event.details);
   } else {
     await recordEvent({ ...event, action: "revision.download" });
   }
@@ -368,6 +368,11 @@ export async function deleteDraft(id: number): Promise<void> {
       tx,
     );
   });
+}
+
+/** A look at a revision's code (the code pane, the 3D view, the run check's opening lines): one event per person, revision and window. */
+export async function recordRevisionView(actor: CurrentUser, id: number, details: { programId: number; number: number; sha256: string }): Promise<void> {
+  await recordRepeatedEvent({ actor, objectType: "revision", objectId: id, details, ip: await requestIp(), action: "revision.view", key: `revision.view:${actor.id}:${id}`, summary: details });
 }
 
 export interface RevisionComparison {

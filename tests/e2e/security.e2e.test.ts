@@ -151,7 +151,7 @@ describe("in the browser (items 1 and 4)", () => {
     await b.page.goto(appUrl("/sign-in"));
     await hydrated(b.page);
     await signIn(b.page, "admin@cyclegate.test");
-    for (const path of ["/", "/machines", "/admin/users", "/admin/users/new", "/admin/machines/new", "/admin/machines/1", "/audit", "/account", "/no-such-page-here"]) {
+    for (const path of ["/", "/machines", "/admin/users", "/admin/users/new", "/admin/machines/new", "/admin/machines/1", "/audit", "/account", "/runs", "/revisions/1/run", "/no-such-page-here"]) {
       await b.page.goto(appUrl(path));
       await hydrated(b.page);
     }

@@ -95,3 +95,13 @@ export function machineFields(overrides: Record<string, string | number | boolea
     ...overrides,
   };
 }
+
+/** The database's message when `q` fails (a trigger's refusal, a constraint), or null when it succeeds. */
+export async function dbError(q: Promise<unknown>): Promise<string | null> {
+  try {
+    await q;
+  } catch (e) {
+    return (e as { cause?: { message?: string } }).cause?.message ?? (e as Error).message;
+  }
+  return null;
+}

@@ -34,6 +34,9 @@ import * as tokensRoute from "@/app/api/tokens/route";
 import * as tokenRoute from "@/app/api/tokens/[id]/route";
 import * as outboxRoute from "@/app/api/outbox/route";
 import * as workOffsetsRoute from "@/app/api/machines/[id]/work-offsets/route";
+import * as runsRoute from "@/app/api/runs/route";
+import * as signOffRoute from "@/app/api/revisions/[id]/runs/route";
+import * as runActions from "@/app/(app)/runs/actions";
 import { initialFormState } from "@/lib/form-state";
 import { actAs, actionStatus, formData, jsonRequest, machineFields, makeUser, params, TEST_PASSWORD } from "./helpers";
 import { insertProgram, insertRevision, ncProgram } from "./vault-helpers";
@@ -52,6 +55,8 @@ const LEAD_ONLY: Row = [401, 403, 403, 200, 403];
 /** Drafts: the uploader (a programmer; the fixture is the caller's own) or an admin. */
 const UPLOADER_OR_ADMIN: Row = [401, 403, 200, 403, 200];
 const AT_THE_MACHINE: Row = [401, 200, 403, 200, 200];
+/** Sign-offs before cycle start: operators, and leads (who often run the first part). */
+const SIGNS_OFF_RUNS: Row = [401, 200, 403, 200, 403];
 
 interface Ctx {
   machineId: number;
@@ -60,6 +65,8 @@ interface Ctx {
   programId: number;
   revisionId: number;
   otherRevisionId: number;
+  /** A released revision with a finished analysis that calls no offset or tool (only identity and dry run to tick). */
+  released: { id: number; sha256: string };
 }
 
 /** A fresh revision of the shared program in `status`, uploaded by the caller (or by the fixture owner). */
@@ -206,6 +213,18 @@ const CASES: Case[] = [
       return http(workOffsetsRoute.DELETE(jsonRequest("DELETE", undefined, "http://localhost/api?code=G59"), rev(c.machineId)));
     },
   },
+  { name: "GET /api/runs", expect: SIGNED_IN, run: () => http(runsRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/runs?page=1&from=2020-01-01"), undefined)) },
+  {
+    name: "POST /api/revisions/[id]/runs",
+    expect: SIGNS_OFF_RUNS,
+    run: (c) =>
+      http(
+        signOffRoute.POST(
+          jsonRequest("POST", { password: c.me?.password ?? TEST_PASSWORD, sha256: c.released.sha256, identity: true, dryRun: true, quantity: 2 }),
+          rev(c.released.id),
+        ),
+      ),
+  },
   { name: "GET /api/audit", expect: LEAD_AND_ADMIN, run: () => http(auditRoute.GET(jsonRequest("GET", undefined, "http://localhost/api/audit?page=1"), undefined)) },
 
   {
@@ -331,6 +350,18 @@ const CASES: Case[] = [
     },
   },
   {
+    name: "action runs#signOffRunAction",
+    expect: SIGNS_OFF_RUNS,
+    run: (c) =>
+      actionStatus(() =>
+        runActions.signOffRunAction(
+          c.released.id,
+          initialFormState,
+          formData({ password: c.me?.password ?? TEST_PASSWORD, sha256: c.released.sha256, identity: true, dryRun: true }),
+        ),
+      ),
+  },
+  {
     name: "action account#createTokenAction",
     expect: PROGRAMMER_ONLY,
     run: () => actionStatus(() => accountActions.createTokenAction(initialFormState, formData({ name: "matrix page token" }))),
@@ -359,6 +390,7 @@ let targetUserId = 0;
 let programId = 0;
 let revisionId = 0;
 let otherRevisionId = 0;
+let released = { id: 0, sha256: "" };
 
 beforeAll(async () => {
   await actAs("admin");
@@ -369,6 +401,13 @@ beforeAll(async () => {
   programId = await insertProgram(owner.id, machineId);
   revisionId = await insertRevision({ programId, uploadedBy: owner.id });
   otherRevisionId = await insertRevision({ programId, uploadedBy: owner.id, text: ncProgram("other", "G1 X30") });
+  const releasedProgram = await insertProgram(owner.id, machineId);
+  const releasedId = await insertRevision({ programId: releasedProgram, uploadedBy: owner.id, status: "released" });
+  const { revisions: revisionsTable } = await import("@/db/schema");
+  const { db } = await import("@/db");
+  const { eq } = await import("drizzle-orm");
+  const [row] = await db().select({ sha256: revisionsTable.sha256 }).from(revisionsTable).where(eq(revisionsTable.id, releasedId));
+  released = { id: releasedId, sha256: row!.sha256 };
 });
 
 describe("role matrix: every route handler and server action x every caller", () => {
@@ -376,7 +415,7 @@ describe("role matrix: every route handler and server action x every caller", ()
     CALLERS.forEach((caller, i) => {
       it(`${c.name} as ${caller} -> ${c.expect[i]}`, async () => {
         const me = await actAs(caller);
-        const status = await c.run({ machineId, targetUserId, me, programId, revisionId, otherRevisionId });
+        const status = await c.run({ machineId, targetUserId, me, programId, revisionId, otherRevisionId, released });
         expect(status).toBe(c.expect[i]);
       });
     });

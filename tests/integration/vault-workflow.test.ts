@@ -9,7 +9,7 @@ import * as revisionRoute from "@/app/api/revisions/[id]/route";
 import { generateToken } from "@/lib/auth/tokens";
 import { env } from "@/lib/env";
 import { deliverOutbox, mailTransport } from "@/lib/mail/outbox";
-import { actAs, jsonRequest, makeUser, params, TEST_PASSWORD } from "./helpers";
+import { actAs, dbError, jsonRequest, makeUser, params, TEST_PASSWORD } from "./helpers";
 import { ensureWorker, makeProgram, ncProgram, readMails, stopWorker, upload, waitForAnalysis } from "./vault-helpers";
 
 beforeAll(async () => {
@@ -186,15 +186,6 @@ describe("workflow", () => {
 });
 
 describe("database guards", () => {
-  const dbError = async (q: Promise<unknown>) => {
-    try {
-      await q;
-    } catch (e) {
-      return (e as { cause?: { message?: string } }).cause?.message ?? (e as Error).message;
-    }
-    return null;
-  };
-
   it("refuses changes to a revision's hash, any change to a released revision but its supersession, and a second released revision", async () => {
     const { programId, revisionId } = await submitted();
     await actAs("lead");

@@ -3,6 +3,7 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
+import { RunTable } from "@/components/runs/run-table";
 import { ComparePicker } from "@/components/vault/compare-picker";
 import { formatNumber } from "@/components/vault/format";
 import { ProgramEvents, SignatureHistory } from "@/components/vault/program-history";
@@ -15,6 +16,7 @@ import { can } from "@/lib/auth/roles";
 import { getMachine, listMachines } from "@/lib/dal/machines";
 import { listProgramSignatures } from "@/lib/dal/pages-program";
 import { getProgram, listProgramEvents } from "@/lib/dal/programs";
+import { listRuns } from "@/lib/dal/runs";
 import { env } from "@/lib/env";
 import { toMachineProfile } from "@/lib/machine-profile";
 import { pageId } from "@/lib/page-params";
@@ -34,11 +36,12 @@ export default async function ProgramPage({ params }: Props) {
   const program = await getProgram(id);
   if (!program) notFound();
   const writer = can(user.role, "writePrograms");
-  const [events, signatures, machine, machines] = await Promise.all([
+  const [events, signatures, machine, machines, runs] = await Promise.all([
     listProgramEvents(id, 100),
     listProgramSignatures(program.revisions),
     getMachine(program.machine.id),
     writer ? listMachines() : Promise.resolve([]),
+    listRuns({ programId: id, page: 1, pageSize: 10 }),
   ]);
   const released = program.revisions.find((r) => r.id === program.releasedRevisionId);
   const pending = program.revisions.filter((r) => r.analysis && (r.analysis.state === "queued" || r.analysis.state === "running")).map((r) => r.id);
@@ -54,9 +57,14 @@ export default async function ProgramPage({ params }: Props) {
             {program.programNumber} <span className="font-normal text-ink-soft">{program.title}</span>
           </h1>
           {released ? (
-            <Link href={`/revisions/${released.id}`} className="rounded-md bg-ok px-3 py-1 text-sm font-semibold text-white">
-              Released: revision {released.number}
-            </Link>
+            <>
+              <Link href={`/revisions/${released.id}`} className="rounded-md bg-ok px-3 py-1 text-sm font-semibold text-white">
+                Released: revision {released.number}
+              </Link>
+              <Link href={`/revisions/${released.id}/run`} className="rounded-md border border-ok px-3 py-1 text-sm font-semibold text-ok hover:bg-ok/10" data-testid="check-before-cycle-start">
+                Check before cycle start
+              </Link>
+            </>
           ) : (
             <span className="rounded-md border border-rule px-3 py-1 text-sm text-ink-soft">Nothing released yet</span>
           )}
@@ -117,6 +125,24 @@ export default async function ProgramPage({ params }: Props) {
           <EmptyState title="No revisions yet.">{writer ? "Drop the first one in the upload area above." : "A programmer uploads the first one."}</EmptyState>
         ) : (
           <RevisionList revisions={program.revisions} releasedId={program.releasedRevisionId} />
+        )}
+      </section>
+
+      <section className="space-y-3" aria-labelledby="runs">
+        <div className="flex flex-wrap items-end justify-between gap-3">
+          <h2 id="runs" className="text-lg font-semibold">Runs at the machine</h2>
+          {runs.total > 0 && (
+            <Link href={`/runs?programId=${program.id}`} className="text-sm text-brand hover:underline">
+              {runs.total > runs.runs.length ? `All ${runs.total} runs` : "In the record of runs"}
+            </Link>
+          )}
+        </div>
+        {runs.runs.length === 0 ? (
+          <EmptyState title="No run is signed off yet." testId="program-runs-empty">
+            {released ? "The operator signs off each run on the released revision's check before cycle start." : "A revision has to be released before it may run."}
+          </EmptyState>
+        ) : (
+          <RunTable runs={runs.runs} view="program" testId="program-runs" />
         )}
       </section>
 

@@ -85,6 +85,7 @@ export default async function RevisionPage({ params, searchParams }: Props) {
             <StatusBadge status={rev.status} />
             <AnalysisBadge state={a?.state} />
             <span className="ml-auto flex flex-wrap gap-2 text-sm">
+              {rev.status === "released" && <Link href={`/revisions/${rev.id}/run`} className="rounded-md border-2 border-ok bg-panel px-3 py-2 font-semibold text-ok hover:bg-ok/10" data-testid="check-before-cycle-start">Check before cycle start</Link>}
               {previous && (
                 <Link href={`/revisions/${previous.id}/compare/${rev.id}`} className="rounded-md border border-rule bg-panel px-3 py-2 hover:bg-paper">
                   Compare with revision {previous.number}
