@@ -58,7 +58,7 @@ async function loadPath(req: PathRequest): Promise<{ path: ViewerPath; meta: Vie
     }
   }
   const t1 = performance.now();
-  const { bytes, wire, waitMs } = req.bytes && !fallback ? { bytes: req.bytes, wire: 0, waitMs: 0 } : await fetchBytes(`/api/revisions/${req.revisionId}/file`);
+  const { bytes, wire, waitMs } = req.bytes && !fallback ? { bytes: req.bytes, wire: 0, waitMs: 0 } : await fetchBytes(`/api/revisions/${req.revisionId}/file?purpose=view`);
   const t2 = performance.now();
   const data = viewerDataFromAnalysis(analyzeProgram(bytes, { ...req.options, segmentTimes: true }));
   return { ...data, report: { source: "bytes", wireBytes: wire, fetchMs: t2 - t1, waitMs, buildMs: performance.now() - t2, buffersMs: 0, fallback } };
