@@ -53,19 +53,21 @@ export interface LoadReport {
   fallback: string | null;
 }
 
+/** Another revision to overlay, with what changed between the two. */
+export interface OverlayResult {
+  revisionId: number;
+  other: PathBuffers;
+  /** Pairs of every drawable segment of the other revision, and of its changed ones. */
+  otherPairs: Uint32Array;
+  otherChanged: Uint32Array;
+  /** Pairs of this revision's changed segments. */
+  changed: Uint32Array;
+  changedCount: number;
+  otherChangedCount: number;
+}
+
 export type FromWorker =
   | { type: "ready"; buffers: PathBuffers; indices: StyleIndices; report: LoadReport }
   | { type: "indices"; seq: number; indices: StyleIndices }
-  | {
-      type: "overlay";
-      revisionId: number;
-      other: PathBuffers;
-      /** Pairs of every drawable segment of the other revision, and of its changed ones. */
-      otherPairs: Uint32Array;
-      otherChanged: Uint32Array;
-      /** Pairs of this revision's changed segments. */
-      changed: Uint32Array;
-      changedCount: number;
-      otherChangedCount: number;
-    }
+  | ({ type: "overlay" } & OverlayResult)
   | { type: "error"; stage: "load" | "overlay"; message: string };

@@ -2,17 +2,8 @@
 
 import { useCallback, useEffect, useRef, useState } from "react";
 import type { StyleIndices, Visibility } from "@/lib/viewer/render-buffers";
-import type { FromWorker, LoadReport, PathBuffers, PathRequest, ToWorker } from "./messages";
+import type { FromWorker, LoadReport, OverlayResult, PathBuffers, PathRequest, ToWorker } from "./messages";
 
-export interface OverlayResult {
-  revisionId: number;
-  other: PathBuffers;
-  otherPairs: Uint32Array;
-  otherChanged: Uint32Array;
-  changed: Uint32Array;
-  changedCount: number;
-  otherChangedCount: number;
-}
 
 export type LoadState =
   | { state: "loading" }

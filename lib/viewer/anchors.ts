@@ -1,4 +1,5 @@
 import { MotionKind } from "../gcode/types";
+import { indexOfSorted, lowerBound } from "./search";
 
 /**
  * Where each of `lines` sits on the path, for markers: the end of the first drawn segment of that line (where a move
@@ -24,18 +25,8 @@ export function anchorLines(
     const l = path.line[i]!;
     while (next < uniq.length && uniq[next]! < l) after[next++] = i;
     if (path.kind[i] === jump) continue;
-    // binary search for l among the finding lines
-    let lo = 0, hi = uniq.length - 1;
-    while (lo <= hi) {
-      const mid = (lo + hi) >> 1;
-      const v = uniq[mid]!;
-      if (v < l) lo = mid + 1;
-      else if (v > l) hi = mid - 1;
-      else {
-        if (own[mid] === -1) own[mid] = i;
-        break;
-      }
-    }
+    const u = indexOfSorted(uniq, l);
+    if (u >= 0 && own[u] === -1) own[u] = i;
   }
   for (let j = 0; j < k; j++) {
     const L = lines[j]!;
@@ -52,14 +43,4 @@ export function anchorLines(
     }
   }
   return { segment, atEnd };
-}
-
-function lowerBound(a: readonly number[], v: number): number {
-  let lo = 0, hi = a.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (a[mid]! < v) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
 }

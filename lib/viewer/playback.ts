@@ -3,6 +3,7 @@
  * segment is. Binary searches over the time columns; nothing proportional to the path's length per call.
  */
 import { MotionKind, NO_TOOL } from "../gcode/types";
+import { lowerBound } from "./search";
 import type { ViewerPath } from "./types";
 
 export type PlayPhase = "start" | "moving" | "pause" | "end";
@@ -88,25 +89,9 @@ export function compactTimeline(
   };
 }
 
-function lowerBound(a: Uint32Array, v: number): number {
-  let lo = 0, hi = a.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (a[mid]! < v) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
-}
-
 /** First segment whose motion ends at or after t (segmentCount when t is past the last end). */
 export function segmentEndingAfter(time: Float32Array, n: number, t: number): number {
-  let lo = 0, hi = n;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (time[mid]! < t) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
+  return lowerBound(time, t, n);
 }
 
 /** Where the tool is at time t (seconds from the program's start). */
