@@ -64,3 +64,13 @@ export function FilterActions({ clearHref, className = "", children }: { clearHr
     </div>
   );
 }
+
+/** The alert above a filtered list when some of the address's filters were not understood (`parseSearch`'s `ignored`). */
+export function IgnoredFilters({ ignored }: { ignored: readonly string[] }) {
+  if (ignored.length === 0) return null;
+  return (
+    <p role="alert" className="rounded-md bg-bad/10 px-3 py-2 text-sm text-bad">
+      Some filters in the address were not understood and were left out: {ignored.join(", ")}.
+    </p>
+  );
+}

@@ -3,22 +3,13 @@
  * summary of the analysis. Built either from the toolpath route's binary answer (toolpath-format.ts) or from an
  * analysis run in the browser (from-analysis.ts); everything downstream is the same.
  */
-import type { Bounds, RuleId, Severity, Units } from "../gcode/types";
+import type { Bounds, RuleId, Severity, Toolpath, Units } from "../gcode/types";
 
-/** The toolpath columns, laid out as the engine's `Toolpath` (lib/gcode/README.md "Toolpath layout"). */
-export interface ViewerPath {
-  segmentCount: number;
-  /** xyz per vertex (segmentCount + 1 vertices, none without segments), part coordinates, program units. */
-  positions: Float32Array;
-  line: Uint32Array;
-  kind: Uint8Array;
-  tool: Uint16Array;
-  offset: Uint8Array;
-  /** Seconds from the program's start to the end of each segment's motion. */
-  time: Float32Array;
-  /** Seconds at the start of each segment's motion (a pause before it shows as a gap after `time[i - 1]`). */
-  startTime: Float32Array;
-}
+/**
+ * The engine's toolpath columns (lib/gcode/README.md "Toolpath layout") with its time columns present, which the
+ * engine writes only with the option `segmentTimes`.
+ */
+export type ViewerPath = Pick<Toolpath, "segmentCount" | "positions" | "line" | "kind" | "tool" | "offset"> & Required<Pick<Toolpath, "time" | "startTime">>;
 
 /** A finding placed on the path: at the end of its line's first drawn segment, else where the tool is when it runs. */
 export interface ViewerFinding {

@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { EmptyState } from "@/components/ui/empty-state";
 import { RunFilters } from "@/components/runs/run-filters";
+import { IgnoredFilters } from "@/components/ui/filter-fields";
 import { RunTable } from "@/components/runs/run-table";
 import { plural } from "@/components/vault/format";
 import { requirePagePermission } from "@/lib/auth/page-guard";
@@ -56,11 +57,7 @@ export default async function RunsPage({ searchParams }: { searchParams: Promise
           </Link>
         </p>
       )}
-      {ignored.length > 0 && (
-        <p role="alert" className="rounded-md bg-bad/10 px-3 py-2 text-sm text-bad">
-          Some filters in the address were not understood and were left out: {ignored.join(", ")}.
-        </p>
-      )}
+      <IgnoredFilters ignored={ignored} />
       <p className="text-sm text-ink-soft" role="status" data-testid="runs-count">
         {plural(list.total, "run")}
         {filtered ? " match the filters" : ""}

@@ -3,6 +3,7 @@ import Link from "next/link";
 import { CheckCaution } from "@/components/ui/check-caution";
 import { EmptyState } from "@/components/ui/empty-state";
 import { ProgramFilters } from "@/components/vault/program-filters";
+import { IgnoredFilters } from "@/components/ui/filter-fields";
 import { ProgramsTable } from "@/components/vault/programs-table";
 import { plural } from "@/components/vault/format";
 import { requirePagePermission } from "@/lib/auth/page-guard";
@@ -45,11 +46,7 @@ export default async function ProgramsPage({ searchParams }: { searchParams: Pro
       </div>
       <CheckCaution />
       <ProgramFilters query={query} machines={machines.map((m) => ({ id: m.id, name: m.name }))} />
-      {ignored.length > 0 && (
-        <p role="alert" className="rounded-md bg-bad/10 px-3 py-2 text-sm text-bad">
-          Some filters in the address were not understood and were left out: {ignored.join(", ")}.
-        </p>
-      )}
+      <IgnoredFilters ignored={ignored} />
       <p className="text-sm text-ink-soft" role="status" data-testid="programs-count">
         {plural(list.total, "program")}
         {filtered ? " match the filters" : ""}
